@@ -1,0 +1,162 @@
+package main
+
+import (
+	"bufio"
+	"context"
+	"encoding/json"
+	"fmt"
+	"os"
+	"path/filepath"
+
+	"kinword/internal/access"
+	"kinword/internal/doc"
+	"kinword/internal/eval"
+	"kinword/internal/index"
+	"kinword/internal/progress"
+	"kinword/internal/text"
+)
+
+func init() {
+	register(&command{name: "eval", summary: "index a judged collection in a temporary folder, run its topics and report MAP, P@10, nDCG@10, R-precision and Recall@100",
+		usage: "--collection DIR [--run FILE] [--per-topic] [--markdown] [--json]", run: runEval})
+}
+
+func runEval(ctx context.Context, e *env, args []string) error {
+	fs, c := newFlags("eval", e.stderr)
+	dir := fs.String("collection", "", "collection folder with docs.jsonl, topics.tsv and qrels.txt (required)")
+	runFile := fs.String("run", "", "also write a TREC run file (qid Q0 docid rank score tag) here")
+	perTopic := fs.Bool("per-topic", false, "print the per-topic table too")
+	markdown := fs.Bool("markdown", false, "print Markdown tables instead of plain text")
+	depth := fs.Int("depth", 1000, "documents ranked per topic")
+	if _, err := e.parse(fs, c, args); err != nil {
+		return err
+	}
+	if *dir == "" {
+		return usagef("--collection DIR is required")
+	}
+	col, err := eval.LoadCollection(*dir)
+	if err != nil {
+		return err
+	}
+	for _, w := range col.Warnings {
+		e.log.Warn("collection", "warning", w)
+	}
+	tmp, err := os.MkdirTemp("", "kinword-eval-*")
+	if err != nil {
+		return fmt.Errorf("eval: temp folder: %w", err)
+	}
+	defer os.RemoveAll(tmp)
+	p, err := text.NewPipeline(e.cfg.Language)
+	if err != nil {
+		return err
+	}
+	ix, err := index.Open(ctx, tmp, index.Options{Pipeline: p, BatchSize: e.cfg.Index.BatchSize})
+	if err != nil {
+		return err
+	}
+	defer ix.Close()
+	n, err := loadCollectionDocs(ctx, e, ix, filepath.Join(*dir, "docs.jsonl"))
+	if err != nil {
+		return err
+	}
+	runs := map[string][]eval.Scored{}
+	view := ix.View(access.Anonymous)
+	lim := index.QueryLimits{MaxBytes: 1 << 16, MaxTerms: 4096}
+	for _, t := range col.Topics {
+		q, err := index.ParseQuery(p, t.Text, lim)
+		if err != nil {
+			e.log.Warn("topic has no searchable words", "qid", t.ID)
+			runs[t.ID] = nil
+			continue
+		}
+		res, err := view.Search(ctx, q, e.bm25(), *depth)
+		if err != nil {
+			return err
+		}
+		for _, h := range res.Hits {
+			runs[t.ID] = append(runs[t.ID], eval.Scored{DocID: h.ID, Score: h.Score})
+		}
+	}
+	if *runFile != "" {
+		f, err := os.Create(*runFile)
+		if err != nil {
+			return fmt.Errorf("eval: run file: %w", err)
+		}
+		if err := eval.WriteRun(f, "kinword-bm25", runs); err != nil {
+			f.Close()
+			return err
+		}
+		if err := f.Close(); err != nil {
+			return fmt.Errorf("eval: run file: %w", err)
+		}
+	}
+	rep := &eval.Report{Collection: col.Name}
+	if err := rep.Add(eval.NewRun("bm25", eval.EvaluateScored(runs, col.Qrels))); err != nil {
+		return err
+	}
+	if e.json {
+		return rep.WriteJSON(e.stdout)
+	}
+	fmt.Fprintf(e.stdout, "collection %s: %d documents, %d judged topics, BM25 k1 %.2f b %.2f\n\n", col.Name, n, len(col.Topics), e.cfg.Index.BM25K1, e.cfg.Index.BM25B)
+	if *markdown {
+		err = rep.WriteMarkdown(e.stdout)
+	} else {
+		err = rep.WriteTable(e.stdout)
+	}
+	if err != nil {
+		return err
+	}
+	if *perTopic {
+		fmt.Fprintln(e.stdout)
+		return rep.WriteTopicTable(e.stdout, "bm25")
+	}
+	return nil
+}
+
+// loadCollectionDocs indexes a collection's docs.jsonl ({"id","title","text"}
+// per line) and returns the number of documents.
+func loadCollectionDocs(ctx context.Context, e *env, ix *index.Index, path string) (int, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return 0, fmt.Errorf("eval: %w", err)
+	}
+	defer f.Close()
+	bar := progress.New(e.stderr, "indexing "+filepath.Base(filepath.Dir(path)), 0, progress.Options{Unit: "docs", Quiet: e.json})
+	sc := bufio.NewScanner(f)
+	sc.Buffer(make([]byte, 1<<20), 64<<20)
+	var batch []doc.Document
+	n, line := 0, 0
+	flush := func() error {
+		if err := ix.Put(ctx, batch); err != nil {
+			return err
+		}
+		n += len(batch)
+		bar.Set(n)
+		batch = batch[:0]
+		return nil
+	}
+	for sc.Scan() {
+		line++
+		var d doc.Document
+		if err := json.Unmarshal(sc.Bytes(), &d); err != nil {
+			return 0, fmt.Errorf("eval: %s line %d: %w", path, line, err)
+		}
+		if d.ID == "" {
+			return 0, fmt.Errorf("eval: %s line %d: document without id", path, line)
+		}
+		batch = append(batch, d)
+		if len(batch) == 1000 {
+			if err := flush(); err != nil {
+				return 0, err
+			}
+		}
+	}
+	if err := sc.Err(); err != nil {
+		return 0, fmt.Errorf("eval: read %s: %w", path, err)
+	}
+	if err := flush(); err != nil {
+		return 0, err
+	}
+	bar.Finish()
+	return n, ix.Commit(ctx)
+}

@@ -1,0 +1,224 @@
+package assoc
+
+import (
+	"context"
+	"fmt"
+	"sync"
+)
+
+// vocab is one scope's counted terms: the corpus terms and phrases with
+// document frequency >= MinDF there.
+type vocab struct {
+	ids    []uint32 // corpus or phrase IDs, ascending
+	df, tf []uint32 // documents and occurrences, parallel to ids
+}
+
+// countVocab computes term and document frequencies of one scope over the
+// phrase-rewritten tokens.
+func (m *miner) countVocab(ctx context.Context, scope int, ps *phraseSet, size int, pr *progress) (vocab, error) {
+	df := make([]uint32, size)
+	tf := make([]uint32, size)
+	seen := make([]int32, size)
+	for i := range seen {
+		seen[i] = -1
+	}
+	var paras []int32
+	var buf []uint32
+	for n, di := range m.sc.docs[scope] {
+		if n&255 == 0 {
+			if err := ctx.Err(); err != nil {
+				return vocab{}, fmt.Errorf("assoc: vocabulary: %w", err)
+			}
+		}
+		d := m.c.Doc(int(di))
+		if err := m.checkTokens(int(di), d.Tokens); err != nil {
+			return vocab{}, err
+		}
+		paras = paragraphs(paras, len(d.Tokens), d.Breaks)
+		for i := 0; i < len(paras); i += 2 {
+			buf = ps.replace(buf[:0], d.Tokens[paras[i]:paras[i+1]])
+			for _, t := range buf {
+				tf[t]++
+				if seen[t] != di {
+					seen[t] = di
+					df[t]++
+				}
+			}
+		}
+		pr.add(1)
+	}
+	var v vocab
+	for id, n := range df {
+		if int(n) >= m.o.MinDF {
+			v.ids = append(v.ids, uint32(id))
+			v.df = append(v.df, n)
+			v.tf = append(v.tf, tf[id])
+		}
+	}
+	return v, nil
+}
+
+// pairJob is one document handed to a counting worker: its tokens as table
+// IDs (-1 = not counted in this scope) and its passages as flattened
+// [start, end) bounds.
+type pairJob struct {
+	doc   uint32
+	toks  []int32
+	units []int32
+}
+
+// pairCounts is the outcome of counting one scope.
+type pairCounts struct {
+	udf   []uint32 // passages containing each term
+	units int64    // non-empty passages
+	mem   [][]slot // the workers' final sorted runs
+	incr  int64    // pair increments made (for benchmarks)
+	toks  int64    // tokens read
+}
+
+type pairWorker struct {
+	cnt    *counter
+	window int
+	udf    []uint32
+	stamp  []uint32
+	seq    uint32
+	units  int64
+	incr   int64
+	set    []int32
+}
+
+func (w *pairWorker) count(j *pairJob) error {
+	for u := 0; u+1 < len(j.units); u += 2 {
+		toks := j.toks[j.units[u]:j.units[u+1]]
+		w.units++
+		w.seq++
+		if w.seq == 0 {
+			clear(w.stamp)
+			w.seq = 1
+		}
+		set := w.set[:0]
+		for _, t := range toks {
+			if t >= 0 && w.stamp[t] != w.seq {
+				w.stamp[t] = w.seq
+				set = append(set, t)
+			}
+		}
+		for i, a := range set {
+			w.udf[a]++
+			for _, b := range set[i+1:] {
+				w.cnt.add(pairKey(uint32(a), uint32(b)), j.doc, 1, 0)
+			}
+		}
+		w.incr += int64(len(set) * (len(set) - 1) / 2)
+		for p, a := range toks {
+			if a < 0 {
+				continue
+			}
+			lim := min(p+w.window+1, len(toks))
+			for _, b := range toks[p+1 : lim] {
+				if b >= 0 && b != a {
+					w.cnt.add(pairKey(uint32(a), uint32(b)), j.doc, 0, 1)
+					w.incr++
+				}
+			}
+		}
+		w.set = set
+	}
+	return w.cnt.endDoc()
+}
+
+// countPairs counts passage and window co-occurrences of one scope with
+// Options.Workers goroutines, each owning a share of the memory budget.
+// localOf maps corpus/phrase IDs to table IDs for the terms counted here.
+func (m *miner) countPairs(ctx context.Context, scope int, ps *phraseSet, localOf []int32, nLocal int, pr *progress) (*pairCounts, error) {
+	ctx, cancel := context.WithCancel(ctx)
+	defer cancel()
+	nw := m.o.Workers
+	work := make(chan *pairJob, nw)
+	free := make(chan *pairJob, 2*nw)
+	for range 2 * nw {
+		free <- &pairJob{}
+	}
+	workers := make([]*pairWorker, nw)
+	var (
+		wg      sync.WaitGroup
+		errOnce sync.Once
+		werr    error
+	)
+	for i := range workers {
+		w := &pairWorker{cnt: newCounter(m.o.MemoryBudget/int64(nw), m.store), window: m.o.Window,
+			udf: make([]uint32, nLocal), stamp: make([]uint32, nLocal)}
+		workers[i] = w
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for j := range work {
+				if ctx.Err() == nil {
+					if err := w.count(j); err != nil {
+						errOnce.Do(func() { werr = err; cancel() })
+					}
+				}
+				free <- j
+			}
+		}()
+	}
+	res := &pairCounts{udf: make([]uint32, nLocal)}
+	perr := m.producePairs(ctx, scope, ps, localOf, work, free, res, pr)
+	close(work)
+	wg.Wait()
+	if werr != nil {
+		return nil, werr
+	}
+	if perr != nil {
+		return nil, perr
+	}
+	for _, w := range workers {
+		for t, n := range w.udf {
+			res.udf[t] += n
+		}
+		res.units += w.units
+		res.incr += w.incr
+		m.stats.spills += w.cnt.spills
+		res.mem = append(res.mem, w.cnt.finish())
+	}
+	return res, nil
+}
+
+// producePairs reads the scope's documents, rewrites phrases, maps tokens
+// to table IDs, cuts passages and hands documents to the workers.
+func (m *miner) producePairs(ctx context.Context, scope int, ps *phraseSet, localOf []int32,
+	work chan<- *pairJob, free <-chan *pairJob, res *pairCounts, pr *progress) error {
+	plen := m.o.PassageLen
+	var paras []int32
+	var buf []uint32
+	for _, di := range m.sc.docs[scope] {
+		var j *pairJob
+		select {
+		case <-ctx.Done():
+			return fmt.Errorf("assoc: count pairs: %w", ctx.Err())
+		case j = <-free:
+		}
+		d := m.c.Doc(int(di))
+		if err := m.checkTokens(int(di), d.Tokens); err != nil {
+			return err
+		}
+		res.toks += int64(len(d.Tokens))
+		j.doc, j.toks, j.units = uint32(di), j.toks[:0], j.units[:0]
+		paras = paragraphs(paras, len(d.Tokens), d.Breaks)
+		for i := 0; i < len(paras); i += 2 {
+			start := int32(len(j.toks))
+			buf = ps.replace(buf[:0], d.Tokens[paras[i]:paras[i+1]])
+			for _, t := range buf {
+				j.toks = append(j.toks, localOf[t])
+			}
+			n := int64(len(buf))
+			spans := (n + int64(plen) - 1) / int64(plen)
+			for k := int64(0); k < spans; k++ {
+				j.units = append(j.units, start+int32(k*n/spans), start+int32((k+1)*n/spans))
+			}
+		}
+		work <- j
+		pr.add(1)
+	}
+	return ctx.Err()
+}

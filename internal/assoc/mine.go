@@ -1,0 +1,135 @@
+package assoc
+
+import (
+	"context"
+	"fmt"
+	"slices"
+	"strings"
+)
+
+// miner carries the state of one Mine call.
+type miner struct {
+	c     Corpus
+	o     Options
+	sc    *scan
+	store *spillStore
+	stats mineStats
+}
+
+// Mine counts term associations in c and returns the table. It reads the
+// corpus in several passes: a scan (fingerprint, access scopes), phrase
+// detection (bigrams, then trigrams), vocabulary (document frequencies),
+// then pair counting and ranking, scope by scope. Each scope is mined from
+// its own documents only. On cancellation Mine returns promptly with an
+// error wrapping ctx.Err(); spill files are always removed.
+func Mine(ctx context.Context, c Corpus, opts Options) (*Table, error) {
+	o := opts.resolved()
+	sc, err := scanCorpus(ctx, c, o.Progress)
+	if err != nil {
+		return nil, err
+	}
+	m := &miner{c: c, o: o, sc: sc, store: newSpillStore(o.TempDir)}
+	defer m.store.cleanup()
+	sets, defs, err := m.detectPhrases(ctx)
+	if err != nil {
+		return nil, err
+	}
+	size := sc.nTerms + len(defs)
+	vocabs := make([]vocab, len(sc.scopes))
+	pr := newProgress(o.Progress, "vocab", sc.totalDocs())
+	for s := range vocabs {
+		if vocabs[s], err = m.countVocab(ctx, s, sets[s], size, pr); err != nil {
+			return nil, err
+		}
+	}
+	t, localOf, err := m.dictionary(vocabs, defs, size)
+	if err != nil {
+		return nil, err
+	}
+	nLocal := t.numTerms()
+	pr = newProgress(o.Progress, "pairs", sc.totalDocs())
+	rank := newProgress(o.Progress, "rank", len(sc.scopes))
+	scopeLocal := make([]int32, size)
+	for s, v := range vocabs {
+		st := &scopeTable{name: sc.scopes[s], docs: uint32(len(sc.docs[s])),
+			df: make([]uint32, nLocal), tf: make([]uint32, nLocal)}
+		for i := range scopeLocal {
+			scopeLocal[i] = -1
+		}
+		for i, id := range v.ids {
+			l := localOf[id]
+			scopeLocal[id] = l
+			st.df[l], st.tf[l] = v.df[i], v.tf[i]
+		}
+		pc, err := m.countPairs(ctx, s, sets[s], scopeLocal, nLocal, pr)
+		if err != nil {
+			return nil, err
+		}
+		m.stats.incr += pc.incr
+		m.stats.toks += pc.toks
+		if err := m.rankScope(ctx, pc, st); err != nil {
+			return nil, err
+		}
+		t.scopes = append(t.scopes, st)
+		rank.add(1)
+	}
+	t.stats = m.stats
+	return t, nil
+}
+
+// dictionary unites the scopes' vocabularies into the table dictionary in
+// key order and returns the table shell and the corpus/phrase-ID to
+// table-ID map (-1 where the term is counted in no scope).
+func (m *miner) dictionary(vocabs []vocab, defs []phraseDef, size int) (*Table, []int32, error) {
+	localOf := make([]int32, size)
+	for i := range localOf {
+		localOf[i] = -1
+	}
+	var ids []uint32
+	for _, v := range vocabs {
+		for _, id := range v.ids {
+			if localOf[id] < 0 {
+				localOf[id] = 0
+				ids = append(ids, id)
+			}
+		}
+	}
+	nT := uint32(m.sc.nTerms)
+	key := func(id uint32) string {
+		if id < nT {
+			return m.c.Term(id)
+		}
+		return defs[id-nT].key
+	}
+	keys := make([]string, size)
+	for _, id := range ids {
+		keys[id] = key(id)
+	}
+	slices.SortFunc(ids, func(a, b uint32) int { return strings.Compare(keys[a], keys[b]) })
+	t := &Table{params: m.o.params(), fingerprint: m.sc.fingerprint, nDocs: m.sc.nDocs, corpusTerms: m.sc.nTerms}
+	var kb, db strings.Builder
+	t.keyOff = make([]uint32, 1, len(ids)+1)
+	t.dispOff = make([]uint32, 1, len(ids)+1)
+	t.words = make([]uint8, len(ids))
+	for l, id := range ids {
+		if l > 0 && keys[id] == keys[ids[l-1]] {
+			return nil, nil, fmt.Errorf("%w: term %q appears twice in the dictionary", ErrBadCorpus, keys[id])
+		}
+		localOf[id] = int32(l)
+		kb.WriteString(keys[id])
+		if id < nT {
+			db.WriteString(m.c.Display(id))
+			t.words[l] = 1
+		} else {
+			db.WriteString(defs[id-nT].display)
+			t.words[l] = uint8(len(defs[id-nT].parts))
+		}
+		if kb.Len() > 1<<32-1 || db.Len() > 1<<32-1 {
+			return nil, nil, fmt.Errorf("%w: dictionary over 4 GiB", ErrBadCorpus)
+		}
+		t.keyOff = append(t.keyOff, uint32(kb.Len()))
+		t.dispOff = append(t.dispOff, uint32(db.Len()))
+	}
+	t.keys, t.disp = kb.String(), db.String()
+	return t, localOf, nil
+}

@@ -1,0 +1,252 @@
+package assoc
+
+import (
+	"context"
+	"fmt"
+	"slices"
+	"strings"
+)
+
+// paragraphs returns the [start, end) bounds, flattened, of the non-empty
+// paragraphs of a document with n tokens. Breaks that are out of order or
+// out of range are ignored.
+func paragraphs(dst []int32, n int, breaks []int32) []int32 {
+	dst = dst[:0]
+	start := int32(0)
+	for _, b := range breaks {
+		if b <= start || int(b) >= n {
+			continue
+		}
+		dst = append(dst, start, b)
+		start = b
+	}
+	if int(start) < n {
+		dst = append(dst, start, int32(n))
+	}
+	return dst
+}
+
+// phraseSet rewrites token runs into phrase IDs: at each position the
+// longest kept phrase starting there (trigram, then bigram) replaces its
+// parts, scanning left to right. A phrase never spans a paragraph break.
+type phraseSet struct {
+	starts  []uint64          // bitset: term starts some bigram
+	bigram  map[uint64]uint32 // a<<32|b -> phrase ID
+	trigram map[uint64]uint32 // bigram ID<<32|c -> phrase ID
+}
+
+func newPhraseSet(nTerms int) *phraseSet {
+	return &phraseSet{starts: make([]uint64, (nTerms+63)/64), bigram: map[uint64]uint32{}, trigram: map[uint64]uint32{}}
+}
+
+func (p *phraseSet) addBigram(a, b, id uint32) {
+	p.starts[a/64] |= 1 << (a % 64)
+	p.bigram[uint64(a)<<32|uint64(b)] = id
+}
+
+// replace appends the rewritten tokens of one paragraph to dst.
+func (p *phraseSet) replace(dst, toks []uint32) []uint32 {
+	if len(p.bigram) == 0 {
+		return append(dst, toks...)
+	}
+	for i := 0; i < len(toks); {
+		t := toks[i]
+		if i+1 < len(toks) && p.starts[t/64]&(1<<(t%64)) != 0 {
+			if bid, ok := p.bigram[uint64(t)<<32|uint64(toks[i+1])]; ok {
+				if i+2 < len(toks) {
+					if tid, ok := p.trigram[uint64(bid)<<32|uint64(toks[i+2])]; ok {
+						dst = append(dst, tid)
+						i += 3
+						continue
+					}
+				}
+				dst = append(dst, bid)
+				i += 2
+				continue
+			}
+		}
+		dst = append(dst, t)
+		i++
+	}
+	return dst
+}
+
+// adjacency counts adjacent token pairs (x, y) of one scope, x and y below
+// size, over the documents' paragraphs rewritten by ps; keep selects the
+// pairs that are candidates. It returns the pairs that pass the phrase
+// thresholds, sorted by key.
+func (m *miner) adjacency(ctx context.Context, scope int, ps *phraseSet, size int,
+	keep func(x, y uint32) bool, pr *progress) ([]uint64, error) {
+	first := make([]uint32, size)
+	second := make([]uint32, size)
+	var nAdj int64
+	cnt := newCounter(m.o.MemoryBudget, m.store)
+	var paras []int32
+	var buf []uint32
+	for n, di := range m.sc.docs[scope] {
+		if n&255 == 0 {
+			if err := ctx.Err(); err != nil {
+				return nil, fmt.Errorf("assoc: phrases: %w", err)
+			}
+		}
+		d := m.c.Doc(int(di))
+		if err := m.checkTokens(int(di), d.Tokens); err != nil {
+			return nil, err
+		}
+		paras = paragraphs(paras, len(d.Tokens), d.Breaks)
+		for i := 0; i < len(paras); i += 2 {
+			buf = ps.replace(buf[:0], d.Tokens[paras[i]:paras[i+1]])
+			for j := 0; j+1 < len(buf); j++ {
+				x, y := buf[j], buf[j+1]
+				first[x]++
+				second[y]++
+				nAdj++
+				if keep(x, y) {
+					cnt.add(uint64(x)<<32|uint64(y), uint32(di), 1, 0)
+				}
+			}
+		}
+		if err := cnt.endDoc(); err != nil {
+			return nil, err
+		}
+		pr.add(1)
+	}
+	m.stats.spills += cnt.spills
+	var kept []uint64
+	minCount, minDocs := uint32(m.o.MinPhraseCount), uint32(m.o.MinDF)
+	err := mergeAll(ctx, m.store, [][]slot{cnt.finish()}, func(e entry) error {
+		if e.u < minCount || e.d < minDocs {
+			return nil
+		}
+		x, y := uint32(e.key>>32), uint32(e.key)
+		ct := NewContingency(int64(e.u), int64(first[x]), int64(second[y]), nAdj)
+		if ct.SignedG2() >= m.o.MinPhraseLLR {
+			kept = append(kept, e.key)
+		}
+		return nil
+	})
+	return kept, err
+}
+
+func (m *miner) checkTokens(doc int, toks []uint32) error {
+	for _, t := range toks {
+		if int(t) >= m.sc.nTerms {
+			return fmt.Errorf("%w: document %d has term id %d, dictionary has %d", ErrBadCorpus, doc, t, m.sc.nTerms)
+		}
+	}
+	return nil
+}
+
+// detectPhrases finds each scope's bigrams, then trigrams made of a kept
+// bigram and the next token, and returns the per-scope phrase sets with
+// table-wide phrase IDs nTerms, nTerms+1, ... in key order.
+func (m *miner) detectPhrases(ctx context.Context) ([]*phraseSet, []phraseDef, error) {
+	nTerms := m.sc.nTerms
+	sets := make([]*phraseSet, len(m.sc.scopes))
+	if m.o.MinPhraseCount < 0 {
+		for i := range sets {
+			sets[i] = newPhraseSet(nTerms)
+		}
+		return sets, nil, nil
+	}
+	total := m.sc.totalDocs()
+	bigrams := make([][]uint64, len(sets))
+	pr := newProgress(m.o.Progress, "bigrams", total)
+	for s := range sets {
+		kept, err := m.adjacency(ctx, s, newPhraseSet(nTerms), nTerms, func(x, y uint32) bool { return true }, pr)
+		if err != nil {
+			return nil, nil, err
+		}
+		bigrams[s] = kept
+	}
+	trigrams := make([][][3]uint32, len(sets))
+	pr = newProgress(m.o.Progress, "trigrams", total)
+	for s := range sets {
+		ps := newPhraseSet(nTerms)
+		for i, k := range bigrams[s] {
+			ps.addBigram(uint32(k>>32), uint32(k), uint32(nTerms+i))
+		}
+		isBigram := func(x, y uint32) bool { return int(x) >= nTerms && int(y) < nTerms }
+		kept, err := m.adjacency(ctx, s, ps, nTerms+len(bigrams[s]), isBigram, pr)
+		if err != nil {
+			return nil, nil, err
+		}
+		for _, k := range kept {
+			bg := bigrams[s][int(k>>32)-nTerms]
+			trigrams[s] = append(trigrams[s], [3]uint32{uint32(bg >> 32), uint32(bg), uint32(k)})
+		}
+	}
+	defs, ids := m.phraseDefs(bigrams, trigrams)
+	for s := range sets {
+		ps := newPhraseSet(nTerms)
+		for _, k := range bigrams[s] {
+			if id, ok := ids[phraseKey(m.c, uint32(k>>32), uint32(k))]; ok {
+				ps.addBigram(uint32(k>>32), uint32(k), id)
+			}
+		}
+		for _, t := range trigrams[s] {
+			bid, ok1 := ids[phraseKey(m.c, t[0], t[1])]
+			tid, ok2 := ids[phraseKey(m.c, t[0], t[1], t[2])]
+			if ok1 && ok2 {
+				ps.trigram[uint64(bid)<<32|uint64(t[2])] = tid
+			}
+		}
+		sets[s] = ps
+	}
+	return sets, defs, nil
+}
+
+// phraseDef is a kept phrase: its corpus term parts, key and display.
+type phraseDef struct {
+	parts        []uint32
+	key, display string
+}
+
+func phraseKey(c Corpus, parts ...uint32) string {
+	s := make([]string, len(parts))
+	for i, p := range parts {
+		s[i] = c.Term(p)
+	}
+	return strings.Join(s, " ")
+}
+
+// phraseDefs unites the scopes' phrases, drops any whose parts contain a
+// space or whose key is already a corpus term, and numbers them in key
+// order after the corpus terms.
+func (m *miner) phraseDefs(bigrams [][]uint64, trigrams [][][3]uint32) ([]phraseDef, map[string]uint32) {
+	byKey := map[string]phraseDef{}
+	add := func(parts ...uint32) {
+		for _, p := range parts {
+			if strings.Contains(m.c.Term(p), " ") {
+				return
+			}
+		}
+		key := phraseKey(m.c, parts...)
+		if _, dup := byKey[key]; dup || m.sc.spaced[key] {
+			return
+		}
+		disp := make([]string, len(parts))
+		for i, p := range parts {
+			disp[i] = m.c.Display(p)
+		}
+		byKey[key] = phraseDef{parts: slices.Clone(parts), key: key, display: strings.Join(disp, " ")}
+	}
+	for s := range bigrams {
+		for _, k := range bigrams[s] {
+			add(uint32(k>>32), uint32(k))
+		}
+		for _, t := range trigrams[s] {
+			add(t[0], t[1], t[2])
+		}
+	}
+	defs := make([]phraseDef, 0, len(byKey))
+	for _, d := range byKey {
+		defs = append(defs, d)
+	}
+	slices.SortFunc(defs, func(a, b phraseDef) int { return strings.Compare(a.key, b.key) })
+	ids := make(map[string]uint32, len(defs))
+	for i, d := range defs {
+		ids[d.key] = uint32(m.sc.nTerms + i)
+	}
+	return defs, ids
+}

@@ -1,0 +1,273 @@
+package assoc
+
+import (
+	"cmp"
+	"encoding/hex"
+	"slices"
+	"sort"
+	"strings"
+
+	"kinword/internal/access"
+)
+
+// Table is a mined association table: a dictionary of terms and phrases and,
+// per access scope, every term's strongest neighbours with their counts.
+// A Table is immutable and safe for concurrent use.
+//
+// Term IDs are table-local (dictionary order), not the corpus's IDs; use
+// LookupFor to find them.
+type Table struct {
+	params      Params
+	fingerprint [32]byte
+	nDocs       int
+	corpusTerms int
+
+	keys    string // all keys, sorted, concatenated
+	keyOff  []uint32
+	disp    string
+	dispOff []uint32
+	words   []uint8 // 1 for a term, 2 or 3 for a phrase
+
+	scopes []*scopeTable
+	stats  mineStats // from Mine only; not stored
+}
+
+// scopeTable is one scope's counts. Per-term arrays are indexed by table
+// ID; df == 0 means the term is not part of the scope.
+type scopeTable struct {
+	name  string
+	docs  uint32
+	units uint64
+	pairs uint64 // pairs that passed support and chance filters
+	udf   []uint32
+	df    []uint32
+	tf    []uint32
+	off   []uint32 // neighbour list of t is [off[t], off[t+1])
+	nb    []uint32
+	k11   []uint32
+	win   []uint32
+	sup   []uint32
+}
+
+type mineStats struct {
+	spills int
+	incr   int64
+	toks   int64
+}
+
+// Neighbour is one related term of a query term, as seen in one scope.
+// Counts are over passages; K12 counts passages with the query term but
+// not the neighbour, K21 the reverse.
+type Neighbour struct {
+	ID       uint32
+	Term     string // stem, or phrase key "stem1 stem2"
+	Display  string
+	Score    float64 // the requested measure
+	LLR      float64 // signed G2
+	PMI      float64 // bits
+	NPMI     float64
+	Chi2     float64
+	Dice     float64
+	CondProb float64 // P(neighbour | query term)
+	TScore   float64
+	K11      int
+	K12      int
+	K21      int
+	K22      int
+	Window   int    // co-occurrences within ±Window tokens
+	Docs     int    // distinct documents supporting the pair
+	Scope    string // OpenScope or the access group it came from
+}
+
+// Phrase is a multi-word term of the table.
+type Phrase struct {
+	ID      uint32
+	Key     string // "stem1 stem2[ stem3]"
+	Display string
+	Words   int
+	Docs    int      // documents containing it, in the largest visible scope
+	Scopes  []string // visible scopes that have it
+}
+
+func (t *Table) numTerms() int { return len(t.words) }
+
+func (t *Table) term(id uint32) string { return t.keys[t.keyOff[id]:t.keyOff[id+1]] }
+
+func (t *Table) display(id uint32) string { return t.disp[t.dispOff[id]:t.dispOff[id+1]] }
+
+// viewerScopes returns the indexes of the scopes v may see: the open scope
+// and those of v's groups.
+func (t *Table) viewerScopes(v access.Viewer) []int {
+	out := []int{0}
+	for _, g := range access.NormalizeGroups(v.Groups) {
+		names := t.scopes[1:]
+		i := sort.Search(len(names), func(i int) bool { return names[i].name >= g })
+		if i < len(names) && names[i].name == g {
+			out = append(out, i+1)
+		}
+	}
+	return out
+}
+
+func (t *Table) visibleIn(scopes []int, id uint32) bool {
+	if int(id) >= t.numTerms() {
+		return false
+	}
+	for _, s := range scopes {
+		if t.scopes[s].df[id] > 0 {
+			return true
+		}
+	}
+	return false
+}
+
+// Visible reports whether term id occurs in a scope v may see.
+func (t *Table) Visible(v access.Viewer, id uint32) bool {
+	return t.visibleIn(t.viewerScopes(v), id)
+}
+
+// LookupFor returns the ID of a term (stem or phrase key) if v may see it.
+func (t *Table) LookupFor(v access.Viewer, term string) (uint32, bool) {
+	n := t.numTerms()
+	i := sort.Search(n, func(i int) bool { return t.term(uint32(i)) >= term })
+	if i < n && t.term(uint32(i)) == term && t.Visible(v, uint32(i)) {
+		return uint32(i), true
+	}
+	return 0, false
+}
+
+// Lookup is LookupFor(access.Anonymous, term): it finds only terms of the
+// open scope. Use LookupFor with the searcher's viewer.
+func (t *Table) Lookup(term string) (uint32, bool) { return t.LookupFor(access.Anonymous, term) }
+
+// Neighbours returns up to k (k <= 0: all kept) neighbours of term id that
+// v may see, best first by measure (ties by term). Each neighbour comes from
+// the one of v's scopes where it scores highest; it is empty when v may not
+// see the term. The neighbours kept per scope were chosen by the build
+// measure (Info().Params.Measure); another measure re-ranks them.
+func (t *Table) Neighbours(v access.Viewer, id uint32, measure Measure, k int) []Neighbour {
+	scopes := t.viewerScopes(v)
+	if !t.visibleIn(scopes, id) {
+		return nil
+	}
+	var out []Neighbour
+	at := map[uint32]int{}
+	for _, s := range scopes {
+		st := t.scopes[s]
+		if st.df[id] == 0 {
+			continue
+		}
+		for e := st.off[id]; e < st.off[id+1]; e++ {
+			nb := t.neighbour(st, id, e, measure)
+			if i, ok := at[nb.ID]; ok {
+				if nb.Score > out[i].Score {
+					out[i] = nb
+				}
+				continue
+			}
+			at[nb.ID] = len(out)
+			out = append(out, nb)
+		}
+	}
+	slices.SortFunc(out, func(a, b Neighbour) int {
+		if c := cmp.Compare(b.Score, a.Score); c != 0 {
+			return c
+		}
+		return strings.Compare(a.Term, b.Term)
+	})
+	if k > 0 && len(out) > k {
+		out = out[:k]
+	}
+	return out
+}
+
+func (t *Table) neighbour(st *scopeTable, id, e uint32, m Measure) Neighbour {
+	nb := st.nb[e]
+	k11, na, nbn, n := int64(st.k11[e]), int64(st.udf[id]), int64(st.udf[nb]), int64(st.units)
+	c := NewContingency(k11, na, nbn, n)
+	return Neighbour{
+		ID: nb, Term: t.term(nb), Display: t.display(nb), Score: c.Score(m),
+		LLR: c.SignedG2(), PMI: c.PMI(), NPMI: c.NPMI(), Chi2: c.Chi2(), Dice: c.Dice(),
+		CondProb: c.CondProb(), TScore: c.TScore(),
+		K11: int(k11), K12: int(na - k11), K21: int(nbn - k11), K22: int(n - na - nbn + k11),
+		Window: int(st.win[e]), Docs: int(st.sup[e]), Scope: st.name,
+	}
+}
+
+// Related is LookupFor followed by Neighbours.
+func (t *Table) Related(v access.Viewer, term string, measure Measure, k int) []Neighbour {
+	id, ok := t.LookupFor(v, term)
+	if !ok {
+		return nil
+	}
+	return t.Neighbours(v, id, measure, k)
+}
+
+// PhrasesFor lists the phrases v may see, in key order.
+func (t *Table) PhrasesFor(v access.Viewer) []Phrase {
+	scopes := t.viewerScopes(v)
+	var out []Phrase
+	for id := range t.numTerms() {
+		if t.words[id] < 2 {
+			continue
+		}
+		p := Phrase{ID: uint32(id), Key: t.term(uint32(id)), Display: t.display(uint32(id)), Words: int(t.words[id])}
+		for _, s := range scopes {
+			if df := int(t.scopes[s].df[id]); df > 0 {
+				p.Scopes = append(p.Scopes, t.scopes[s].name)
+				p.Docs = max(p.Docs, df)
+			}
+		}
+		if len(p.Scopes) > 0 {
+			out = append(out, p)
+		}
+	}
+	return out
+}
+
+// Phrases is PhrasesFor(access.Anonymous): the phrases of the open scope.
+func (t *Table) Phrases() []Phrase { return t.PhrasesFor(access.Anonymous) }
+
+// Info describes a table for operators. It names every scope, so it is not
+// for end users.
+type Info struct {
+	FormatVersion int
+	Params        Params
+	Fingerprint   string // hex SHA-256 of the corpus data
+	Docs          int    // documents in the corpus
+	CorpusTerms   int    // corpus dictionary size
+	Terms         int    // table dictionary size, phrases included
+	Phrases       int
+	Scopes        []ScopeInfo
+}
+
+// ScopeInfo summarises one scope.
+type ScopeInfo struct {
+	Name       string // OpenScope or the access group
+	Docs       int
+	Passages   int64
+	Terms      int   // terms and phrases counted in the scope
+	Pairs      int64 // pairs passing the support and chance filters
+	Neighbours int   // neighbour entries kept
+}
+
+// Info returns the table's parameters, fingerprint and counts.
+func (t *Table) Info() Info {
+	in := Info{FormatVersion: formatVersion, Params: t.params, Fingerprint: hex.EncodeToString(t.fingerprint[:]),
+		Docs: t.nDocs, CorpusTerms: t.corpusTerms, Terms: t.numTerms()}
+	for _, w := range t.words {
+		if w > 1 {
+			in.Phrases++
+		}
+	}
+	for _, st := range t.scopes {
+		si := ScopeInfo{Name: st.name, Docs: int(st.docs), Passages: int64(st.units), Pairs: int64(st.pairs), Neighbours: len(st.nb)}
+		for _, df := range st.df {
+			if df > 0 {
+				si.Terms++
+			}
+		}
+		in.Scopes = append(in.Scopes, si)
+	}
+	return in
+}

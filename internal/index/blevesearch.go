@@ -1,0 +1,49 @@
+package index
+
+import (
+	"context"
+	"fmt"
+
+	"github.com/blevesearch/bleve/v2"
+	"github.com/blevesearch/bleve/v2/search/query"
+
+	"kinword/internal/access"
+)
+
+// accessQuery matches documents open to everyone or to one of v's groups.
+func accessQuery(v access.Viewer) query.Query {
+	qs := []query.Query{termQuery(fieldGroups, openGroup)}
+	for _, g := range v.Groups {
+		qs = append(qs, termQuery(fieldGroups, g))
+	}
+	return query.NewDisjunctionQuery(qs)
+}
+
+func termQuery(field, term string) query.Query {
+	q := query.NewTermQuery(term)
+	q.SetField(field)
+	return q
+}
+
+// BleveSearch runs bleve's own BM25 top-k search of the words over the
+// content field, filtered to what v may read. Kinword ranks with View.Search;
+// this exists for comparison (benchmarks and the scoring-difference test).
+func (ix *Index) BleveSearch(ctx context.Context, v access.Viewer, words string, k int) ([]Hit, error) {
+	mq := query.NewMatchQuery(words)
+	mq.SetField(fieldContent)
+	mq.Analyzer = analyzerName(ix.p.DefaultLanguage())
+	filter := accessQuery(v.Normalize())
+	// The access filter must not add to the score: boost it to zero.
+	filter.(*query.DisjunctionQuery).SetBoost(0)
+	q := query.NewConjunctionQuery([]query.Query{mq, filter})
+	req := bleve.NewSearchRequestOptions(q, k, 0, false)
+	res, err := ix.b.SearchInContext(ctx, req)
+	if err != nil {
+		return nil, fmt.Errorf("index: bleve search: %w", err)
+	}
+	out := make([]Hit, 0, len(res.Hits))
+	for _, h := range res.Hits {
+		out = append(out, Hit{ID: h.ID, Score: h.Score})
+	}
+	return out, nil
+}

@@ -1,0 +1,210 @@
+package index
+
+import (
+	"bytes"
+	"encoding/binary"
+	"fmt"
+	"hash/crc32"
+	"os"
+	"path/filepath"
+	"sort"
+
+	"kinword/internal/text"
+)
+
+// fwdMagic opens a forward file; the last byte is the format version.
+var fwdMagic = []byte("KWFWD\x00\x00\x01")
+
+// fwdDoc is what Kinword keeps per document beside bleve: enough to score
+// BM25, run feedback and mine associations without re-reading sources.
+type fwdDoc struct {
+	ID, Source, Hash, Lang, Dept string
+	Groups                       []string // sorted; empty = open
+	Tokens                       []uint32 // term IDs in order, stopwords removed
+	Breaks                       []int32  // token offsets where paragraphs start
+}
+
+// forward is the mutable per-document store. Terms are append-only so IDs
+// stay stable across ingests.
+type forward struct {
+	gen    uint64
+	terms  []string
+	termID map[string]uint32
+	docs   map[string]*fwdDoc
+	// surf holds surface-form counts per access scope: "" for open
+	// documents, else the group name, so a display form never comes only
+	// from documents a viewer cannot read.
+	surf map[string]*text.Surfaces
+}
+
+func newForward() *forward {
+	return &forward{termID: map[string]uint32{}, docs: map[string]*fwdDoc{}, surf: map[string]*text.Surfaces{}}
+}
+
+func (f *forward) intern(stem string) uint32 {
+	if id, ok := f.termID[stem]; ok {
+		return id
+	}
+	id := uint32(len(f.terms))
+	f.terms = append(f.terms, stem)
+	f.termID[stem] = id
+	return id
+}
+
+func (f *forward) surfaces(scope string) *text.Surfaces {
+	s := f.surf[scope]
+	if s == nil {
+		s = text.NewSurfaces()
+		f.surf[scope] = s
+	}
+	return s
+}
+
+// save writes the store atomically: a temp file in the same folder, fsync,
+// rename, fsync of the folder.
+func (f *forward) save(path string) error {
+	tmp, err := os.CreateTemp(filepath.Dir(path), ".forward-*.tmp")
+	if err != nil {
+		return fmt.Errorf("index: save forward: %w", err)
+	}
+	defer os.Remove(tmp.Name())
+	e := newEnc(tmp)
+	e.raw(fwdMagic)
+	e.uvarint(f.gen)
+	e.uvarint(uint64(len(f.terms)))
+	for _, t := range f.terms {
+		e.str(t)
+	}
+	scopes := make([]string, 0, len(f.surf))
+	for s := range f.surf {
+		scopes = append(scopes, s)
+	}
+	sort.Strings(scopes)
+	e.uvarint(uint64(len(scopes)))
+	for _, sc := range scopes {
+		e.str(sc)
+		var rows [][3]any
+		f.surf[sc].Each(func(stem, surface string, n uint32) { rows = append(rows, [3]any{stem, surface, n}) })
+		e.uvarint(uint64(len(rows)))
+		for _, r := range rows {
+			e.str(r[0].(string))
+			e.str(r[1].(string))
+			e.uvarint(uint64(r[2].(uint32)))
+		}
+	}
+	ids := make([]string, 0, len(f.docs))
+	for id := range f.docs {
+		ids = append(ids, id)
+	}
+	sort.Strings(ids)
+	e.uvarint(uint64(len(ids)))
+	for _, id := range ids {
+		d := f.docs[id]
+		for _, s := range []string{d.ID, d.Source, d.Hash, d.Lang, d.Dept} {
+			e.str(s)
+		}
+		e.uvarint(uint64(len(d.Groups)))
+		for _, g := range d.Groups {
+			e.str(g)
+		}
+		e.uvarint(uint64(len(d.Tokens)))
+		for _, t := range d.Tokens {
+			e.uvarint(uint64(t))
+		}
+		e.uvarint(uint64(len(d.Breaks)))
+		for _, b := range d.Breaks {
+			e.uvarint(uint64(b))
+		}
+	}
+	if err := e.finish(); err != nil {
+		tmp.Close()
+		return fmt.Errorf("index: save forward: %w", err)
+	}
+	if err := tmp.Sync(); err != nil {
+		tmp.Close()
+		return fmt.Errorf("index: sync forward: %w", err)
+	}
+	if err := tmp.Close(); err != nil {
+		return fmt.Errorf("index: close forward: %w", err)
+	}
+	if err := os.Rename(tmp.Name(), path); err != nil {
+		return fmt.Errorf("index: install forward: %w", err)
+	}
+	return syncDir(filepath.Dir(path))
+}
+
+func syncDir(dir string) error {
+	d, err := os.Open(dir)
+	if err != nil {
+		return fmt.Errorf("index: sync dir: %w", err)
+	}
+	defer d.Close()
+	if err := d.Sync(); err != nil {
+		return fmt.Errorf("index: sync dir: %w", err)
+	}
+	return nil
+}
+
+// loadForward reads a forward file, checking magic, checksum and structure.
+func loadForward(path string) (*forward, error) {
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("index: read forward: %w", err)
+	}
+	if len(b) < len(fwdMagic)+4 || !bytes.Equal(b[:len(fwdMagic)], fwdMagic) {
+		return nil, fmt.Errorf("%w: %s: bad magic or version", ErrCorrupt, path)
+	}
+	body, trailer := b[:len(b)-4], b[len(b)-4:]
+	if crc32.Checksum(body, castagnoli) != binary.LittleEndian.Uint32(trailer) {
+		return nil, fmt.Errorf("%w: %s: checksum mismatch", ErrCorrupt, path)
+	}
+	d := &dec{b: body, off: len(fwdMagic)}
+	f := newForward()
+	f.gen = d.uvarint()
+	nt := d.count()
+	f.terms = make([]string, 0, nt)
+	for i := 0; i < nt && d.err == nil; i++ {
+		t := d.str()
+		f.termID[t] = uint32(len(f.terms))
+		f.terms = append(f.terms, t)
+	}
+	ns := d.count()
+	for i := 0; i < ns && d.err == nil; i++ {
+		sc := f.surfaces(d.str())
+		nr := d.count()
+		for j := 0; j < nr && d.err == nil; j++ {
+			stem, surface := d.str(), d.str()
+			sc.AddN(stem, surface, uint32(d.uvarint()))
+		}
+	}
+	nd := d.count()
+	for i := 0; i < nd && d.err == nil; i++ {
+		x := &fwdDoc{ID: d.str(), Source: d.str(), Hash: d.str(), Lang: d.str(), Dept: d.str()}
+		ng := d.count()
+		for j := 0; j < ng && d.err == nil; j++ {
+			x.Groups = append(x.Groups, d.str())
+		}
+		ntok := d.count()
+		x.Tokens = make([]uint32, ntok)
+		for j := range x.Tokens {
+			v := d.uvarint()
+			if v >= uint64(len(f.terms)) && d.err == nil {
+				d.err = fmt.Errorf("%w: term id %d out of range", ErrCorrupt, v)
+			}
+			x.Tokens[j] = uint32(v)
+		}
+		nb := d.count()
+		x.Breaks = make([]int32, nb)
+		for j := range x.Breaks {
+			x.Breaks[j] = int32(d.uvarint())
+		}
+		f.docs[x.ID] = x
+	}
+	if d.err != nil {
+		return nil, fmt.Errorf("index: load %s: %w", path, d.err)
+	}
+	if d.off != len(body) {
+		return nil, fmt.Errorf("%w: %s: %d trailing bytes", ErrCorrupt, path, len(body)-d.off)
+	}
+	return f, nil
+}

@@ -1,0 +1,157 @@
+// Package index is Kinword's document index: bleve v2 on disk for documents,
+// stored text and metadata, and beside it a forward store of per-document
+// term sequences with per-access-class statistics, over which Kinword scores
+// the textbook BM25 itself.
+//
+// Why scoring of our own: bleve v2.6.3's BM25 takes the average field length
+// as ceil(dictionary cardinality / document count) rather than the mean
+// length, and multiplies disjunction scores by a coordination factor (both
+// verified by TestBleveScoringDiffersFromTextbook), and it cannot weight
+// expansion terms per query or restrict collection statistics to what one
+// viewer may read. Kinword therefore uses bleve for analysis, storage,
+// highlight-free stored text, metadata and its own comparison search, and
+// ranks with exact BM25 over in-memory postings built from the forward store
+// with statistics from the viewer's access scope only.
+//
+// This is the only package that imports bleve. It must not import gin or
+// database drivers.
+package index
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"runtime"
+	"sync"
+	"sync/atomic"
+
+	"github.com/blevesearch/bleve/v2"
+
+	"kinword/internal/text"
+)
+
+// ErrClosed is returned by operations on a closed index.
+var ErrClosed = errors.New("index: closed")
+
+// Internal bleve keys that tie the forward store to the bleve index.
+var (
+	keyGen   = []byte("kinword.gen")
+	keyDirty = []byte("kinword.dirty")
+)
+
+// Options configure Open.
+type Options struct {
+	// Pipeline is the shared text pipeline; required.
+	Pipeline *text.Pipeline
+	// BatchSize is the number of documents per bleve batch; default 1000.
+	BatchSize int
+	// Workers is the number of goroutines analysing documents for the
+	// forward store; default GOMAXPROCS.
+	Workers int
+}
+
+// Index is an open index folder. It is safe for concurrent readers; writes
+// (Put, Delete, Commit) are serialised.
+type Index struct {
+	dir   string
+	opts  Options
+	b     bleve.Index
+	p     *text.Pipeline
+	wmu   sync.Mutex // serialises writers
+	fwd   *forward   // guarded by wmu
+	dirty bool       // guarded by wmu: uncommitted writes
+	snap  atomic.Pointer[snapshot]
+}
+
+// Open opens or creates the index in dir (dir/bleve and dir/forward.kwf).
+// If a previous writer stopped between writing bleve and the forward store,
+// the forward store is rebuilt from bleve's stored text.
+func Open(ctx context.Context, dir string, opts Options) (*Index, error) {
+	if opts.Pipeline == nil {
+		return nil, errors.New("index: open: Options.Pipeline is required")
+	}
+	if opts.BatchSize <= 0 {
+		opts.BatchSize = 1000
+	}
+	if opts.Workers <= 0 {
+		opts.Workers = runtime.GOMAXPROCS(0)
+	}
+	if err := registerAnalyzers(opts.Pipeline); err != nil {
+		return nil, err
+	}
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return nil, fmt.Errorf("index: open: %w", err)
+	}
+	ix := &Index{dir: dir, opts: opts, p: opts.Pipeline}
+	bpath := filepath.Join(dir, "bleve")
+	var err error
+	if _, statErr := os.Stat(bpath); statErr == nil {
+		ix.b, err = bleve.Open(bpath)
+	} else {
+		ix.b, err = bleve.New(bpath, buildMapping())
+	}
+	if err != nil {
+		return nil, fmt.Errorf("index: open bleve %s: %w", bpath, err)
+	}
+	if err := ix.loadForward(ctx); err != nil {
+		ix.b.Close()
+		return nil, err
+	}
+	ix.snap.Store(buildSnapshot(ix.fwd))
+	return ix, nil
+}
+
+func (ix *Index) forwardPath() string { return filepath.Join(ix.dir, "forward.kwf") }
+
+func (ix *Index) loadForward(ctx context.Context) error {
+	dirty, err := ix.b.GetInternal(keyDirty)
+	if err != nil {
+		return fmt.Errorf("index: read state: %w", err)
+	}
+	genB, err := ix.b.GetInternal(keyGen)
+	if err != nil {
+		return fmt.Errorf("index: read state: %w", err)
+	}
+	f, err := loadForward(ix.forwardPath())
+	switch {
+	case errors.Is(err, os.ErrNotExist):
+		f = newForward()
+	case err != nil && !errors.Is(err, ErrCorrupt):
+		return err
+	}
+	consistent := err == nil && len(dirty) == 0 && string(genB) == fmt.Sprint(f.gen)
+	if errors.Is(err, os.ErrNotExist) && len(dirty) == 0 && len(genB) == 0 {
+		consistent = true // a brand-new index
+	}
+	if !consistent {
+		f, err = ix.rebuildForward(ctx)
+		if err != nil {
+			return err
+		}
+		ix.fwd = f
+		ix.dirty = true
+		return ix.Commit(ctx)
+	}
+	ix.fwd = f
+	return nil
+}
+
+// Dir returns the index folder.
+func (ix *Index) Dir() string { return ix.dir }
+
+// Pipeline returns the text pipeline the index analyses with.
+func (ix *Index) Pipeline() *text.Pipeline { return ix.p }
+
+// Len returns the number of documents in the current snapshot.
+func (ix *Index) Len() int { return len(ix.snap.Load().docs) }
+
+// Close commits nothing: uncommitted writes are left for the next Open to
+// reconcile. Call Commit first.
+func (ix *Index) Close() error {
+	if err := ix.b.Close(); err != nil {
+		return fmt.Errorf("index: close: %w", err)
+	}
+	return nil
+}
