@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"strings"
 
 	"kinword/internal/access"
 	"kinword/internal/doc"
@@ -55,12 +56,24 @@ func runEval(ctx context.Context, e *env, args []string) error {
 		return err
 	}
 	defer ix.Close()
-	n, err := loadCollectionDocs(ctx, e, ix, filepath.Join(*dir, "docs.jsonl"))
+	var n int
+	if _, serr := os.Stat(filepath.Join(*dir, "docs.jsonl")); serr == nil {
+		n, err = loadCollectionDocs(ctx, e, ix, filepath.Join(*dir, "docs.jsonl"))
+	} else if _, serr := os.Stat(filepath.Join(*dir, "docs")); serr == nil {
+		// A folder collection (like the demo intranet): ingest it as
+		// `kinword ingest` would.
+		_, err = syncPaths(ctx, e, ix, []string{filepath.Join(*dir, "docs")})
+		n = ix.Len()
+	} else {
+		return usagef("%s has neither docs.jsonl nor a docs/ folder", *dir)
+	}
 	if err != nil {
 		return err
 	}
 	runs := map[string][]eval.Scored{}
-	view := ix.View(access.Anonymous)
+	// Judged topics are run by a viewer who may read every group, so that
+	// restricted relevant documents count as they do for their askers.
+	view := ix.View(access.Viewer{Groups: ix.Groups()})
 	lim := index.QueryLimits{MaxBytes: 1 << 16, MaxTerms: 4096}
 	for _, t := range col.Topics {
 		q, err := index.ParseQuery(p, t.Text, lim)
@@ -91,11 +104,41 @@ func runEval(ctx context.Context, e *env, args []string) error {
 		}
 	}
 	rep := &eval.Report{Collection: col.Name}
-	if err := rep.Add(eval.NewRun("bm25", eval.EvaluateScored(runs, col.Qrels))); err != nil {
+	per := eval.EvaluateScored(runs, col.Qrels)
+	if err := rep.Add(eval.NewRun("bm25", per)); err != nil {
 		return err
 	}
+	kinds, err := readKinds(filepath.Join(*dir, "topic-kinds.tsv"))
+	if err != nil {
+		return err
+	}
+	var misses []kindMiss
+	for _, kind := range sortedKinds(kinds) {
+		sub := map[string]eval.Measures{}
+		for qid, m := range per {
+			if kinds[qid] == kind {
+				sub[qid] = m
+			}
+		}
+		if err := rep.Add(eval.NewRun("bm25["+kind+"]", sub)); err != nil {
+			return err
+		}
+		misses = append(misses, countMisses(kind, sub, runs, col.Qrels))
+	}
 	if e.json {
-		return rep.WriteJSON(e.stdout)
+		if len(misses) == 0 {
+			return rep.WriteJSON(e.stdout)
+		}
+		var buf strings.Builder
+		if err := rep.WriteJSON(&buf); err != nil {
+			return err
+		}
+		var obj map[string]any
+		if err := json.Unmarshal([]byte(buf.String()), &obj); err != nil {
+			return err
+		}
+		obj["no_relevant_in_top_10"] = misses
+		return e.printJSON(obj)
 	}
 	fmt.Fprintf(e.stdout, "collection %s: %d documents, %d judged topics, BM25 k1 %.2f b %.2f\n\n", col.Name, n, len(col.Topics), e.cfg.Index.BM25K1, e.cfg.Index.BM25B)
 	if *markdown {
@@ -105,6 +148,9 @@ func runEval(ctx context.Context, e *env, args []string) error {
 	}
 	if err != nil {
 		return err
+	}
+	for _, m := range misses {
+		fmt.Fprintf(e.stdout, "%s topics: %d of %d have no relevant document in the top 10, %d none of their best-graded ones\n", m.Kind, m.Missed, m.Topics, m.MissedBest)
 	}
 	if *perTopic {
 		fmt.Fprintln(e.stdout)

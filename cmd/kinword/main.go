@@ -101,4 +101,3 @@ func printOverview(w io.Writer) {
 	}
 	fmt.Fprintln(w, "\nevery command takes --data DIR (default from the config file), --config FILE and --json")
 }
-

@@ -74,6 +74,9 @@ func collectionsDir(t *testing.T) string {
 		dir = filepath.Join(wd, "..", "..", "..", "shared", "collections")
 	}
 	if _, err := os.Stat(dir); err != nil {
+		if os.Getenv("CI") == "true" {
+			t.Fatalf("test collections not found at %s in CI (../shared/collections must be beside the clone): %v", dir, err)
+		}
 		t.Skipf("test collections not found at %s (set KINWORD_COLLECTIONS): %v", dir, err)
 	}
 	return dir

@@ -19,9 +19,9 @@ var castagnoli = crc32.MakeTable(crc32.Castagnoli)
 type enc struct {
 	w     *bufio.Writer
 	under io.Writer
-	crc hash.Hash32
-	buf [binary.MaxVarintLen64]byte
-	err error
+	crc   hash.Hash32
+	buf   [binary.MaxVarintLen64]byte
+	err   error
 }
 
 func newEnc(w io.Writer) *enc {

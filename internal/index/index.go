@@ -24,6 +24,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"sort"
 	"sync"
 	"sync/atomic"
 
@@ -154,4 +155,21 @@ func (ix *Index) Close() error {
 		return fmt.Errorf("index: close: %w", err)
 	}
 	return nil
+}
+
+// Groups returns every access group that restricts a document, sorted.
+func (ix *Index) Groups() []string {
+	s := ix.snap.Load()
+	set := map[string]bool{}
+	for _, c := range s.classes {
+		for _, g := range c.groups {
+			set[g] = true
+		}
+	}
+	out := make([]string, 0, len(set))
+	for g := range set {
+		out = append(out, g)
+	}
+	sort.Strings(out)
+	return out
 }

@@ -247,7 +247,6 @@ func TestSnippet(t *testing.T) {
 	}
 }
 
-
 func TestParseQueryErrors(t *testing.T) {
 	p, _ := text.NewPipeline("")
 	cases := []struct{ name, q string }{

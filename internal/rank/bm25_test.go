@@ -16,7 +16,7 @@ import (
 func TestBM25HandComputed(t *testing.T) {
 	p := DefaultBM25
 	cases := []struct {
-		name                       string
+		name                         string
 		w, tf, dl, avgdl, N, n, want float64
 	}{
 		{"issue worked case", 1, 3, 100, 120, 1000, 10, 7.42684},

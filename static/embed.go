@@ -1,0 +1,11 @@
+// Package static embeds Kinword's web assets into the binary. go:embed
+// cannot reach parent folders, so the embedding lives here beside the files.
+// It must not import anything but the standard library.
+package static
+
+import "embed"
+
+// FS holds the embedded assets.
+//
+//go:embed brand.css
+var FS embed.FS
