@@ -149,3 +149,10 @@ func addForms(dst, src *text.Surfaces, key string) {
 		}
 	}
 }
+
+// DocGroups returns the access groups of document d (nil = open).
+func (w *View) DocGroups(d uint32) []string { return w.s.docs[d].Groups }
+
+// NumDocs is the number of documents in the snapshot, readable or not; use
+// CanRead to filter.
+func (w *View) NumDocs() int { return len(w.s.docs) }

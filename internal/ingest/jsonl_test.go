@@ -3,6 +3,7 @@ package ingest
 import (
 	"errors"
 	"reflect"
+	"strings"
 	"testing"
 	"time"
 )
@@ -50,6 +51,46 @@ func TestParseJSONLine(t *testing.T) {
 			}
 			if title != c.title || body != c.body || !reflect.DeepEqual(meta, c.meta) {
 				t.Errorf("got %q %q %+v\nwant %q %q %+v", title, body, meta, c.title, c.body, c.meta)
+			}
+		})
+	}
+}
+
+func TestJSONLFile(t *testing.T) {
+	long := `{"id":"long","text":"` + strings.Repeat("x", 300) + `"}`
+	cases := []struct {
+		name    string
+		content string
+		want    []string // "path-suffix=id" for documents, "path-suffix!label" for skips
+	}{
+		{name: "blank lines counted, CRLF tolerated", content: "{\"id\":\"a\",\"text\":\"A\"}\r\n\r\n\n{\"id\":\"b\",\"text\":\"B\"}",
+			want: []string{"#L1=a", "#L4=b"}},
+		{name: "line over the limit", content: long + "\n" + `{"id":"ok","text":"fine"}` + "\n", want: []string{"#L1!too large", "#L2=ok"}},
+		{name: "empty text and malformed", content: "{\"id\":\"e\",\"text\":\"  \"}\nnot json\n", want: []string{"#L1!empty", "#L2!malformed line"}},
+		{name: "empty file", content: "\n\n", want: []string{"x.jsonl!empty"}},
+		{name: "binary file", content: "\x00\x00\x00", want: []string{"x.jsonl!binary"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			dir := t.TempDir()
+			writeFiles(t, dir, map[string]string{"x.jsonl": c.content})
+			var got []string
+			for _, it := range walkAll(t, []string{dir}, Options{MaxBytes: 200}) {
+				suffix := it.Path[strings.LastIndex(it.Path, "x.jsonl")+len("x.jsonl"):]
+				if suffix == "" {
+					suffix = "x.jsonl"
+				}
+				if it.Skip != nil {
+					got = append(got, suffix+"!"+Label(it.Skip.Kind()))
+				} else {
+					got = append(got, suffix+"="+it.Doc.ID)
+					if !strings.HasSuffix(it.Doc.Source, "x.jsonl"+suffix) || it.Doc.URL != "" {
+						t.Errorf("source %q url %q", it.Doc.Source, it.Doc.URL)
+					}
+				}
+			}
+			if !reflect.DeepEqual(got, c.want) {
+				t.Errorf("got %v, want %v", got, c.want)
 			}
 		})
 	}

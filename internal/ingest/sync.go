@@ -130,7 +130,7 @@ func Sync(ctx context.Context, roots []string, opts SyncOptions, sink Sink) (sum
 			return putErr
 		}
 		sum.Indexed += len(batch)
-		batch = batch[:0]
+		batch = nil // the sink may keep the slice
 		return nil
 	}
 	emit := func(r result) error {
@@ -141,9 +141,11 @@ func Sync(ctx context.Context, roots []string, opts SyncOptions, sink Sink) (sum
 			sum.Unchanged++
 		case r.Skip != nil:
 			sum.Skipped = append(sum.Skipped, *r.Skip)
-			if errors.Is(r.Skip.Reason, ErrUnreadable) { // keep what we had
-				for _, id := range bySource[r.source] {
-					seen[id] = true
+			if errors.Is(r.Skip.Reason, ErrUnreadable) { // keep what we had, lines included
+				for id, k := range known {
+					if k.Source == r.source || lineSuffix.ReplaceAllString(k.Source, "") == r.source {
+						seen[id] = true
+					}
 				}
 			}
 		case r.Doc != nil:

@@ -58,6 +58,12 @@ type Item struct {
 // and folders (name starting with "."), sidecar files and folder-defaults
 // files yield no Item. A bad file yields a Skip and never stops the walk;
 // Walk stops when fn returns an error (returned as is) or ctx ends.
+//
+// Each Document has ID = explicit id, else the slash path relative to its
+// root (a single-file root: its name); Source = the absolute path ("#L<n>"
+// appended for a JSON line); Hash = doc.HashBytes of the file (or line)
+// bytes, mixed with the sidecar and folder-defaults bytes when those apply.
+// A later file reusing an ID is skipped with ErrDuplicateID.
 func Walk(ctx context.Context, roots []string, opts Options, fn func(Item) error) error {
 	w, err := newWalker(opts)
 	if err != nil {

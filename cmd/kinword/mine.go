@@ -1,0 +1,101 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"os"
+	"path/filepath"
+	"time"
+
+	"kinword/internal/access"
+	"kinword/internal/assoc"
+	"kinword/internal/index"
+	"kinword/internal/progress"
+)
+
+func init() {
+	register(&command{name: "mine", summary: "mine term associations and phrases from the index into the association table (per access scope)",
+		usage: "[--collection DIR] [--budget MiB] [--window W] [--min-df N] [--top-k K] [--data DIR]", run: runMine})
+}
+
+// tableFile is the association table's place in the data folder.
+func (e *env) tableFile() string { return filepath.Join(e.dataDir, "assoc.kwa") }
+
+// indexCorpus shows an index snapshot to the miner: every document, with its
+// groups, so that the miner builds one table per access scope. Display forms
+// come from open documents only, so a form seen only in restricted
+// documents never reaches the open table.
+type indexCorpus struct {
+	all  *index.View
+	open *index.View
+}
+
+func (c indexCorpus) NumDocs() int { return c.all.NumDocs() }
+func (c indexCorpus) Doc(i int) assoc.DocTerms {
+	toks, br := c.all.Tokens(uint32(i))
+	return assoc.DocTerms{Tokens: toks, Breaks: br, Groups: c.all.DocGroups(uint32(i))}
+}
+func (c indexCorpus) NumTerms() int            { return c.all.NumTerms() }
+func (c indexCorpus) Term(id uint32) string    { return c.all.Term(id) }
+func (c indexCorpus) Display(id uint32) string { return c.open.Display(c.all.Term(id)) }
+
+func runMine(ctx context.Context, e *env, args []string) error {
+	fs, c := newFlags("mine", e.stderr)
+	col := fs.String("collection", "", "first ingest a collection folder (docs.jsonl or docs/) into the data folder")
+	budget := fs.Int("budget", 1024, "memory budget for pair counts, MiB; beyond it sorted runs spill to disk")
+	window := fs.Int("window", assoc.DefaultWindow, "co-occurrence window, ± tokens")
+	minDF := fs.Int("min-df", assoc.DefaultMinDF, "minimum document frequency of a mined term")
+	topK := fs.Int("top-k", assoc.DefaultTopK, "neighbours kept per term and scope")
+	if _, err := e.parse(fs, c, args); err != nil {
+		return err
+	}
+	if *budget < 16 {
+		return usagef("--budget must be at least 16 MiB")
+	}
+	ix, err := e.openIndex(ctx)
+	if err != nil {
+		return err
+	}
+	defer ix.Close()
+	if *col != "" {
+		if _, err := os.Stat(filepath.Join(*col, "docs.jsonl")); err == nil {
+			if _, err := loadCollectionDocs(ctx, e, ix, filepath.Join(*col, "docs.jsonl")); err != nil {
+				return err
+			}
+		} else if _, err := syncPaths(ctx, e, ix, []string{filepath.Join(*col, "docs")}); err != nil {
+			return err
+		}
+	}
+	if ix.Len() == 0 {
+		return fmt.Errorf("mine: the index in %s is empty: ingest documents first (or pass --collection)", e.dataDir)
+	}
+	corpus := indexCorpus{all: ix.View(access.Viewer{Groups: ix.Groups()}), open: ix.View(access.Anonymous)}
+	bar := progress.New(e.stderr, "mine", 0, progress.Options{Unit: "units", Quiet: e.json})
+	phase := ""
+	start := time.Now()
+	tbl, err := assoc.Mine(ctx, corpus, assoc.Options{
+		Window: *window, MinDF: *minDF, TopK: *topK,
+		MemoryBudget: int64(*budget) << 20, TempDir: e.dataDir,
+		Progress: func(p string, done, total int) {
+			if p != phase {
+				phase = p
+				bar.Phase("mine: "+p, total)
+			}
+			bar.Set(done)
+		},
+	})
+	bar.Finish()
+	if err != nil {
+		return err // the previous table, if any, is untouched
+	}
+	if err := tbl.Write(e.tableFile()); err != nil {
+		return err
+	}
+	info := tbl.Info()
+	st, _ := os.Stat(e.tableFile())
+	if e.json {
+		return e.printJSON(map[string]any{"table": e.tableFile(), "bytes": st.Size(), "seconds": time.Since(start).Seconds(), "info": info})
+	}
+	fmt.Fprintf(e.stdout, "mined %d documents in %.1f s: %s (%.1f MiB)\n", ix.Len(), time.Since(start).Seconds(), e.tableFile(), float64(st.Size())/(1<<20))
+	return nil
+}
