@@ -39,18 +39,6 @@ var (
 	ErrCorrupt   = errors.New("assoc: malformed content")
 )
 
-type enc struct{ b []byte }
-
-func (e *enc) u8(v uint8)   { e.b = append(e.b, v) }
-func (e *enc) u32(v uint32) { e.b = binary.LittleEndian.AppendUint32(e.b, v) }
-func (e *enc) u64(v uint64) { e.b = binary.LittleEndian.AppendUint64(e.b, v) }
-func (e *enc) str(s string) { e.u32(uint32(len(s))); e.b = append(e.b, s...) }
-func (e *enc) u32s(vs []uint32) {
-	for _, v := range vs {
-		e.u32(v)
-	}
-}
-
 // sections returns the artifact's section tags and payloads.
 func (t *Table) sections() ([]string, [][]byte) {
 	var p enc

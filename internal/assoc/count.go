@@ -80,13 +80,19 @@ type pairWorker struct {
 	cnt    *counter
 	window int
 	udf    []uint32
-	stamp  []uint32
+	stamp  []uint32 // stamp[t] == seq: t is in the current passage's set
+	slot   []int32  // position of t in the set, valid when stamped
 	seq    uint32
 	units  int64
 	incr   int64
-	set    []int32
+	set    []int32  // distinct counted terms of the passage
+	pos    []int32  // per token: its set position, or -1
+	win    []uint32 // window counts, upper triangle of a len(set)^2 matrix
 }
 
+// count adds one document: for each passage, every pair of distinct counted
+// terms gets one unit and its window co-occurrences, in a single table
+// update per pair.
 func (w *pairWorker) count(j *pairJob) error {
 	for u := 0; u+1 < len(j.units); u += 2 {
 		toks := j.toks[j.units[u]:j.units[u+1]]
@@ -96,33 +102,44 @@ func (w *pairWorker) count(j *pairJob) error {
 			clear(w.stamp)
 			w.seq = 1
 		}
-		set := w.set[:0]
+		set, pos := w.set[:0], w.pos[:0]
 		for _, t := range toks {
-			if t >= 0 && w.stamp[t] != w.seq {
+			if t < 0 {
+				pos = append(pos, -1)
+				continue
+			}
+			if w.stamp[t] != w.seq {
 				w.stamp[t] = w.seq
+				w.slot[t] = int32(len(set))
 				set = append(set, t)
+			}
+			pos = append(pos, w.slot[t])
+		}
+		n := len(set)
+		if need := n * n; len(w.win) < need {
+			w.win = make([]uint32, need)
+		}
+		win := w.win
+		for p, a := range pos {
+			if a < 0 {
+				continue
+			}
+			for _, b := range pos[p+1 : min(p+w.window+1, len(pos))] {
+				if b >= 0 && b != a {
+					win[int(min(a, b))*n+int(max(a, b))]++
+				}
 			}
 		}
 		for i, a := range set {
 			w.udf[a]++
-			for _, b := range set[i+1:] {
-				w.cnt.add(pairKey(uint32(a), uint32(b)), j.doc, 1, 0)
+			row := win[i*n : (i+1)*n]
+			for k := i + 1; k < n; k++ {
+				w.cnt.add(pairKey(uint32(a), uint32(set[k])), j.doc, 1, row[k])
+				w.incr += 1 + int64(row[k])
+				row[k] = 0
 			}
 		}
-		w.incr += int64(len(set) * (len(set) - 1) / 2)
-		for p, a := range toks {
-			if a < 0 {
-				continue
-			}
-			lim := min(p+w.window+1, len(toks))
-			for _, b := range toks[p+1 : lim] {
-				if b >= 0 && b != a {
-					w.cnt.add(pairKey(uint32(a), uint32(b)), j.doc, 0, 1)
-					w.incr++
-				}
-			}
-		}
-		w.set = set
+		w.set, w.pos = set, pos
 	}
 	return w.cnt.endDoc()
 }
@@ -147,7 +164,7 @@ func (m *miner) countPairs(ctx context.Context, scope int, ps *phraseSet, localO
 	)
 	for i := range workers {
 		w := &pairWorker{cnt: newCounter(m.o.MemoryBudget/int64(nw), m.store), window: m.o.Window,
-			udf: make([]uint32, nLocal), stamp: make([]uint32, nLocal)}
+			udf: make([]uint32, nLocal), stamp: make([]uint32, nLocal), slot: make([]int32, nLocal)}
 		workers[i] = w
 		wg.Add(1)
 		go func() {

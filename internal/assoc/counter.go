@@ -1,14 +1,8 @@
 package assoc
 
-import (
-	"cmp"
-	"slices"
-)
-
-// emptyKey marks a free slot; real keys have both halves < 2^32-1.
-const emptyKey = ^uint64(0)
-
-// slot is one pair (or phrase candidate) count. u counts units (or
+// slot is one pair (or phrase candidate) count. The table stores key+1 so
+// that the zero slot is free (real keys have both halves < 2^31, so key+1
+// never overflows); sorted runs hold the real key again. u counts units (or
 // occurrences), w window co-occurrences, d distinct documents; last is the
 // last document that touched the slot, so d counts each document once.
 type slot struct {
@@ -55,9 +49,6 @@ func newCounter(budget int64, store *spillStore) *counter {
 
 func (c *counter) alloc(capacity int) {
 	c.slots = make([]slot, capacity)
-	for i := range c.slots {
-		c.slots[i].key = emptyKey
-	}
 	bits := uint(0)
 	for 1<<bits < capacity {
 		bits++
@@ -72,6 +63,7 @@ func (c *counter) index(key uint64) int {
 
 // add records du units and dw window co-occurrences of key seen in doc.
 func (c *counter) add(key uint64, doc, du, dw uint32) {
+	key++
 	mask := len(c.slots) - 1
 	for i := c.index(key); ; i = (i + 1) & mask {
 		s := &c.slots[i]
@@ -84,7 +76,7 @@ func (c *counter) add(key uint64, doc, du, dw uint32) {
 			}
 			return
 		}
-		if s.key == emptyKey {
+		if s.key == 0 {
 			*s = slot{key: key, u: du, w: dw, d: 1, last: doc}
 			c.n++
 			if c.n*4 > len(c.slots)*3 {
@@ -99,7 +91,7 @@ func (c *counter) grow() {
 	old := c.slots
 	c.alloc(len(old) * 2)
 	for _, s := range old {
-		if s.key != emptyKey {
+		if s.key != 0 {
 			c.insertSlot(s)
 		}
 	}
@@ -108,7 +100,7 @@ func (c *counter) grow() {
 func (c *counter) insertSlot(s slot) {
 	mask := len(c.slots) - 1
 	i := c.index(s.key)
-	for c.slots[i].key != emptyKey {
+	for c.slots[i].key != 0 {
 		i = (i + 1) & mask
 	}
 	c.slots[i] = s
@@ -134,24 +126,24 @@ func (c *counter) endDoc() error {
 }
 
 func (c *counter) clear() {
-	for i := range c.slots {
-		c.slots[i].key = emptyKey
-	}
+	clear(c.slots)
 	c.n = 0
 }
 
-// sorted compacts the live slots to the front in place and sorts them by
-// key. The table must be cleared or dropped afterwards.
+// sorted compacts the live slots to the front in place, restores their
+// real keys and sorts them by key. The table must be cleared or dropped
+// afterwards.
 func (c *counter) sorted() []slot {
 	j := 0
 	for i := range c.slots {
-		if c.slots[i].key != emptyKey {
+		if c.slots[i].key != 0 {
 			c.slots[j] = c.slots[i]
+			c.slots[j].key--
 			j++
 		}
 	}
 	live := c.slots[:j]
-	slices.SortFunc(live, func(a, b slot) int { return cmp.Compare(a.key, b.key) })
+	sortSlots(live)
 	return live
 }
 

@@ -3,6 +3,7 @@ package assoc
 import (
 	"cmp"
 	"context"
+	"errors"
 	"slices"
 	"strings"
 	"testing"
@@ -247,6 +248,38 @@ func TestParagraphsIgnoresBadBreaks(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			if got := paragraphs(nil, tc.n, tc.breaks); !slices.Equal(got, tc.want) {
 				t.Errorf("got %v, want %v", got, tc.want)
+			}
+		})
+	}
+}
+
+// badCorpus wraps a MemCorpus and misreports its dictionary.
+type badCorpus struct {
+	*MemCorpus
+	numTerms int
+	term     func(id uint32) string
+}
+
+func (b badCorpus) NumTerms() int { return b.numTerms }
+
+func (b badCorpus) Term(id uint32) string { return b.term(id) }
+
+func TestBadCorpus(t *testing.T) {
+	c := NewMemCorpus(nil)
+	for range 4 {
+		c.AddDoc(nil, strings.Fields("alpha beta gamma"))
+	}
+	cases := []struct {
+		name string
+		c    Corpus
+	}{
+		{"token beyond dictionary", badCorpus{c, 2, c.Term}},
+		{"duplicate stems", badCorpus{c, 3, func(id uint32) string { return "same" }}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			if _, err := Mine(context.Background(), tc.c, Options{MinPhraseCount: -1}); !errors.Is(err, ErrBadCorpus) {
+				t.Fatalf("err = %v, want ErrBadCorpus", err)
 			}
 		})
 	}

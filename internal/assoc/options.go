@@ -37,8 +37,9 @@ type Options struct {
 	// bigram or trigram to be kept as a phrase. Default 5; a negative value
 	// disables phrase detection.
 	MinPhraseCount int
-	// MinPhraseLLR is the minimum G2 (Dunning 1993) of a phrase's adjacency
-	// table. Default 10.83 (chi-square, p = 0.001, 1 df).
+	// MinPhraseLLR is the minimum signed G2 (Dunning 1993) of a phrase's
+	// adjacency table. Default 10.83 (chi-square, p = 0.001, 1 df); a
+	// negative value lets every frequent enough bigram through.
 	MinPhraseLLR float64
 	// MinSupportDocs is the minimum number of distinct documents in which a
 	// pair must co-occur (in some passage) to be kept. Default 3.
@@ -62,7 +63,8 @@ type Options struct {
 	Workers int
 	// Progress, if set, is called from Mine's goroutine with the phase name
 	// ("scan", "bigrams", "trigrams", "vocab", "pairs", "rank"), the units
-	// done and the total for that phase (documents, or terms for "rank").
+	// done and the total for that phase (document visits summed over the
+	// scopes, or scopes for "rank"). A phase may start with done = 0.
 	Progress func(phase string, done, total int)
 }
 

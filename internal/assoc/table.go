@@ -59,6 +59,9 @@ type mineStats struct {
 // Counts are over passages; K12 counts passages with the query term but
 // not the neighbour, K21 the reverse.
 type Neighbour struct {
+	// ID is the neighbour's table ID, a handle for further Neighbours calls.
+	// Do not show IDs to end users: they follow the key order of the whole
+	// dictionary, so gaps would hint at terms of other scopes.
 	ID       uint32
 	Term     string // stem, or phrase key "stem1 stem2"
 	Display  string
