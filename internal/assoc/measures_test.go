@@ -107,3 +107,22 @@ func TestParseMeasure(t *testing.T) {
 		})
 	}
 }
+
+func FuzzParseMeasure(f *testing.F) {
+	for _, n := range measureNames {
+		f.Add(n)
+	}
+	f.Add("Chi2 ")
+	f.Fuzz(func(t *testing.T, s string) {
+		m, err := ParseMeasure(s)
+		if err != nil {
+			if !errors.Is(err, ErrUnknownMeasure) {
+				t.Fatalf("error %v is not ErrUnknownMeasure", err)
+			}
+			return
+		}
+		if back, err := ParseMeasure(m.String()); err != nil || back != m {
+			t.Fatalf("%q -> %v -> %q -> %v, %v", s, m, m.String(), back, err)
+		}
+	})
+}
