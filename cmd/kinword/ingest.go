@@ -103,6 +103,7 @@ func runIngest(ctx context.Context, e *env, args []string) error {
 // resumes.
 func syncPaths(ctx context.Context, e *env, ix *index.Index, paths []string) (ingest.Summary, error) {
 	var bar *progress.Bar
+	byDocs := false
 	opts := ingest.SyncOptions{
 		Options: ingest.Options{
 			MaxBytes:        e.cfg.Ingest.MaxFileBytes,
@@ -112,7 +113,17 @@ func syncPaths(ctx context.Context, e *env, ix *index.Index, paths []string) (in
 		BatchSize: e.cfg.Ingest.BatchSize,
 		Progress: func(done, total int, phase string) {
 			if bar == nil {
-				bar = progress.New(e.stderr, "ingest", total, progress.Options{Unit: "files", Quiet: e.json})
+				// Few files (large JSON Lines): count documents; many
+				// files: count files, which gives an ETA.
+				byDocs = total <= 3
+				unit, t := "files", total
+				if byDocs {
+					unit, t = "docs", 0
+				}
+				bar = progress.New(e.stderr, "ingest", t, progress.Options{Unit: unit, Quiet: e.json})
+			}
+			if (phase == "docs") != byDocs && phase != "delete" {
+				return
 			}
 			if phase == "delete" {
 				if total == 0 {

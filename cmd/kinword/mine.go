@@ -33,11 +33,13 @@ type indexCorpus struct {
 func (c indexCorpus) NumDocs() int { return c.all.NumDocs() }
 func (c indexCorpus) Doc(i int) assoc.DocTerms {
 	toks, br := c.all.Tokens(uint32(i))
-	return assoc.DocTerms{Tokens: toks, Breaks: br, Groups: c.all.DocGroups(uint32(i))}
+	return assoc.DocTerms{Tokens: toks, Breaks: br, Gaps: c.all.Gaps(uint32(i)), Groups: c.all.DocGroups(uint32(i))}
 }
-func (c indexCorpus) NumTerms() int            { return c.all.NumTerms() }
-func (c indexCorpus) Term(id uint32) string    { return c.all.Term(id) }
-func (c indexCorpus) Display(id uint32) string { return c.open.Display(c.all.Term(id)) }
+func (c indexCorpus) DocSurfaces(i int) []uint32 { return c.all.DocSurfaces(uint32(i)) }
+func (c indexCorpus) Surface(id uint32) string   { return c.all.Surface(id) }
+func (c indexCorpus) NumTerms() int              { return c.all.NumTerms() }
+func (c indexCorpus) Term(id uint32) string      { return c.all.Term(id) }
+func (c indexCorpus) Display(id uint32) string   { return c.open.Display(c.all.Term(id)) }
 
 func runMine(ctx context.Context, e *env, args []string) error {
 	fs, c := newFlags("mine", e.stderr)

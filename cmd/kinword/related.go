@@ -6,6 +6,7 @@ import (
 	"strings"
 	"text/tabwriter"
 
+	"kinword/internal/access"
 	"kinword/internal/assoc"
 	"kinword/internal/text"
 )
@@ -16,6 +17,9 @@ func init() {
 }
 
 type relatedNeighbour struct {
+	// Kind is "neighbour" (a co-occurring term) or "phrase" (a mined
+	// phrase containing the asked word, its natural refinement).
+	Kind     string  `json:"kind"`
 	Term     string  `json:"term"`
 	Display  string  `json:"display"`
 	Score    float64 `json:"score"`
@@ -65,12 +69,7 @@ func runRelated(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return fmt.Errorf("related: %w (run kinword mine first)", err)
 	}
-	var out []relatedNeighbour
-	for _, n := range tbl.Related(viewer.v, key, m, *k) {
-		out = append(out, relatedNeighbour{Term: n.Term, Display: n.Display, Score: n.Score, LLR: n.LLR, PMI: n.PMI, NPMI: n.NPMI,
-			Chi2: n.Chi2, Dice: n.Dice, CondProb: n.CondProb, TScore: n.TScore, K11: n.K11, K12: n.K12, K21: n.K21, K22: n.K22,
-			Window: n.Window, Docs: n.Docs, Scope: n.Scope})
-	}
+	out := relatedList(tbl, viewer.v, key, m, *k)
 	if e.json {
 		if out == nil {
 			out = []relatedNeighbour{}
@@ -82,9 +81,46 @@ func runRelated(ctx context.Context, e *env, args []string) error {
 		return nil
 	}
 	tw := tabwriter.NewWriter(e.stdout, 2, 4, 2, ' ', 0)
-	fmt.Fprintf(tw, "neighbour\tllr\tnpmi\tpmi\tdice\tP(b|a)\tk11\tk12\tk21\tk22\tdocs\tscope\n")
+	fmt.Fprintf(tw, "related\tkind\tllr\tnpmi\tpmi\tdice\tP(b|a)\tk11\tk12\tk21\tk22\tdocs\tscope\n")
 	for _, n := range out {
-		fmt.Fprintf(tw, "%s\t%.1f\t%.3f\t%.2f\t%.3f\t%.3f\t%d\t%d\t%d\t%d\t%d\t%s\n", n.Display, n.LLR, n.NPMI, n.PMI, n.Dice, n.CondProb, n.K11, n.K12, n.K21, n.K22, n.Docs, n.Scope)
+		if n.Kind == "phrase" {
+			fmt.Fprintf(tw, "%s\t%s\t-\t-\t-\t-\t-\t-\t-\t-\t-\t%d\t%s\n", n.Display, n.Kind, n.Docs, n.Scope)
+			continue
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%.1f\t%.3f\t%.2f\t%.3f\t%.3f\t%d\t%d\t%d\t%d\t%d\t%s\n", n.Display, n.Kind, n.LLR, n.NPMI, n.PMI, n.Dice, n.CondProb, n.K11, n.K12, n.K21, n.K22, n.Docs, n.Scope)
 	}
 	return tw.Flush()
+}
+
+// maxPhrasesShown caps the phrases listed before a word's neighbours.
+const maxPhrasesShown = 3
+
+// relatedList is a single word's phrases (most documents first, at most
+// three) followed by its neighbours; a phrase key gets neighbours only.
+func relatedList(tbl *assoc.Table, v access.Viewer, key string, m assoc.Measure, k int) []relatedNeighbour {
+	var out []relatedNeighbour
+	if !strings.Contains(key, " ") {
+		for i, p := range tbl.PhrasesWith(v, key) {
+			if i == maxPhrasesShown || len(out) == k {
+				break
+			}
+			out = append(out, relatedNeighbour{Kind: "phrase", Term: p.Key, Display: p.Display, Docs: p.Docs})
+		}
+	}
+	shown := map[string]bool{}
+	for _, r := range out {
+		shown[r.Term] = true
+	}
+	for _, n := range tbl.Related(v, key, m, k) {
+		if len(out) == k {
+			break
+		}
+		if shown[n.Term] {
+			continue
+		}
+		out = append(out, relatedNeighbour{Kind: "neighbour", Term: n.Term, Display: n.Display, Score: n.Score, LLR: n.LLR, PMI: n.PMI, NPMI: n.NPMI,
+			Chi2: n.Chi2, Dice: n.Dice, CondProb: n.CondProb, TScore: n.TScore, K11: n.K11, K12: n.K12, K21: n.K21, K22: n.K22,
+			Window: n.Window, Docs: n.Docs, Scope: n.Scope})
+	}
+	return out
 }

@@ -25,10 +25,24 @@ type Corpus interface {
 	Display(id uint32) string
 }
 
+// Surfacer is an optional extension of Corpus: the written (folded) form of
+// every token, so that a phrase displays as its words were written together
+// ("axial compression") rather than as each stem's commonest form.
+type Surfacer interface {
+	// DocSurfaces returns surface IDs parallel to Doc(i).Tokens.
+	DocSurfaces(i int) []uint32
+	// Surface returns the written form of a surface ID.
+	Surface(id uint32) string
+}
+
 // DocTerms is one document's term data.
 type DocTerms struct {
 	Tokens []uint32
 	Breaks []int32
+	// Gaps are token offsets preceded by removed words (stopwords): a
+	// phrase never spans a gap, so "subjected to aerodynamic" does not
+	// yield the phrase "subjected aerodynamic". Sorted; nil means none.
+	Gaps   []int32
 	Groups []string
 }
 

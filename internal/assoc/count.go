@@ -24,6 +24,8 @@ func (m *miner) countVocab(ctx context.Context, scope int, ps *phraseSet, size i
 	}
 	var paras []int32
 	var buf []uint32
+	var gap, gbuf []bool
+	sf, hasSurf := m.c.(Surfacer)
 	for n, di := range m.sc.docs[scope] {
 		if n&255 == 0 {
 			if err := ctx.Err(); err != nil {
@@ -35,8 +37,13 @@ func (m *miner) countVocab(ctx context.Context, scope int, ps *phraseSet, size i
 			return vocab{}, err
 		}
 		paras = paragraphs(paras, len(d.Tokens), d.Breaks)
+		gap = gapMask(gap, len(d.Tokens), d.Gaps)
 		for i := 0; i < len(paras); i += 2 {
-			buf = ps.replace(buf[:0], d.Tokens[paras[i]:paras[i+1]])
+			a, b := paras[i], paras[i+1]
+			buf, gbuf = ps.replace(buf[:0], d.Tokens[a:b], gap[a:b], gbuf[:0])
+			if hasSurf {
+				m.countSurfaces(scope, sf, sf.DocSurfaces(int(di)), buf, int(a))
+			}
 			for _, t := range buf {
 				tf[t]++
 				if seen[t] != di {
@@ -208,6 +215,7 @@ func (m *miner) producePairs(ctx context.Context, scope int, ps *phraseSet, loca
 	plen := m.o.PassageLen
 	var paras []int32
 	var buf []uint32
+	var gap, gbuf []bool
 	for _, di := range m.sc.docs[scope] {
 		var j *pairJob
 		select {
@@ -222,9 +230,11 @@ func (m *miner) producePairs(ctx context.Context, scope int, ps *phraseSet, loca
 		res.toks += int64(len(d.Tokens))
 		j.doc, j.toks, j.units = uint32(di), j.toks[:0], j.units[:0]
 		paras = paragraphs(paras, len(d.Tokens), d.Breaks)
+		gap = gapMask(gap, len(d.Tokens), d.Gaps)
 		for i := 0; i < len(paras); i += 2 {
 			start := int32(len(j.toks))
-			buf = ps.replace(buf[:0], d.Tokens[paras[i]:paras[i+1]])
+			a, b := paras[i], paras[i+1]
+			buf, gbuf = ps.replace(buf[:0], d.Tokens[a:b], gap[a:b], gbuf[:0])
 			for _, t := range buf {
 				j.toks = append(j.toks, localOf[t])
 			}

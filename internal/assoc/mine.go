@@ -14,6 +14,10 @@ type miner struct {
 	sc    *scan
 	store *spillStore
 	stats mineStats
+	defs  []phraseDef
+	// phraseSurf counts, per scope, how each phrase was written (when the
+	// corpus is a Surfacer): phrase ID -> surface words -> occurrences.
+	phraseSurf []map[uint32]map[string]uint32
 }
 
 // Mine counts term associations in c and returns the table. It reads the
@@ -35,6 +39,8 @@ func Mine(ctx context.Context, c Corpus, opts Options) (*Table, error) {
 		return nil, err
 	}
 	size := sc.nTerms + len(defs)
+	m.defs = defs
+	m.phraseSurf = make([]map[uint32]map[string]uint32, len(sc.scopes))
 	vocabs := make([]vocab, len(sc.scopes))
 	pr := newProgress(o.Progress, "vocab", sc.totalDocs())
 	for s := range vocabs {
@@ -42,6 +48,7 @@ func Mine(ctx context.Context, c Corpus, opts Options) (*Table, error) {
 			return nil, err
 		}
 	}
+	m.phraseDisplays()
 	t, localOf, err := m.dictionary(vocabs, defs, size)
 	if err != nil {
 		return nil, err
@@ -132,4 +139,57 @@ func (m *miner) dictionary(vocabs []vocab, defs []phraseDef, size int) (*Table, 
 	}
 	t.keys, t.disp = kb.String(), db.String()
 	return t, localOf, nil
+}
+
+// phraseDisplays sets each phrase's display to its commonest written form,
+// taken from the open scope when the phrase occurs there, else from the
+// first scope that has it, so an open display never comes from restricted
+// text.
+func (m *miner) phraseDisplays() {
+	for i := range m.defs {
+		id := uint32(m.sc.nTerms + i)
+		for _, counts := range m.phraseSurf {
+			forms := counts[id]
+			if len(forms) == 0 {
+				continue
+			}
+			best, bestN := "", uint32(0)
+			for f, n := range forms {
+				if n > bestN || (n == bestN && f < best) {
+					best, bestN = f, n
+				}
+			}
+			m.defs[i].display = best
+			break
+		}
+	}
+}
+
+// countSurfaces records how the phrases in one rewritten paragraph were
+// written. buf is the rewritten paragraph, which began at token a.
+func (m *miner) countSurfaces(scope int, sf Surfacer, surf []uint32, buf []uint32, a int) {
+	if m.phraseSurf[scope] == nil {
+		m.phraseSurf[scope] = map[uint32]map[string]uint32{}
+	}
+	nT := uint32(m.sc.nTerms)
+	pos := a
+	for _, t := range buf {
+		w := 1
+		if t >= nT {
+			w = len(m.defs[t-nT].parts)
+			if pos+w <= len(surf) {
+				words := make([]string, w)
+				for k := range words {
+					words[k] = sf.Surface(surf[pos+k])
+				}
+				forms := m.phraseSurf[scope][t]
+				if forms == nil {
+					forms = map[string]uint32{}
+					m.phraseSurf[scope][t] = forms
+				}
+				forms[strings.Join(words, " ")]++
+			}
+		}
+		pos += w
+	}
 }

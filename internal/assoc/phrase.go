@@ -44,31 +44,43 @@ func (p *phraseSet) addBigram(a, b, id uint32) {
 	p.bigram[uint64(a)<<32|uint64(b)] = id
 }
 
-// replace appends the rewritten tokens of one paragraph to dst.
-func (p *phraseSet) replace(dst, toks []uint32) []uint32 {
-	if len(p.bigram) == 0 {
-		return append(dst, toks...)
+// gapMask marks, per token of a document, whether removed words precede
+// it. It reuses dst.
+func gapMask(dst []bool, n int, gaps []int32) []bool {
+	dst = append(dst[:0], make([]bool, n)...)
+	for _, g := range gaps {
+		if g >= 0 && int(g) < n {
+			dst[g] = true
+		}
 	}
+	return dst
+}
+
+// replace appends the rewritten tokens of one paragraph to dst, and to gdst
+// whether a gap precedes each output token. gap marks the input tokens that
+// follow removed words (nil = none); no phrase spans such a gap.
+func (p *phraseSet) replace(dst, toks []uint32, gap, gdst []bool) ([]uint32, []bool) {
+	at := func(i int) bool { return gap != nil && gap[i] }
 	for i := 0; i < len(toks); {
 		t := toks[i]
-		if i+1 < len(toks) && p.starts[t/64]&(1<<(t%64)) != 0 {
+		if len(p.bigram) > 0 && i+1 < len(toks) && !at(i+1) && p.starts[t/64]&(1<<(t%64)) != 0 {
 			if bid, ok := p.bigram[uint64(t)<<32|uint64(toks[i+1])]; ok {
-				if i+2 < len(toks) {
+				if i+2 < len(toks) && !at(i+2) {
 					if tid, ok := p.trigram[uint64(bid)<<32|uint64(toks[i+2])]; ok {
-						dst = append(dst, tid)
+						dst, gdst = append(dst, tid), append(gdst, at(i))
 						i += 3
 						continue
 					}
 				}
-				dst = append(dst, bid)
+				dst, gdst = append(dst, bid), append(gdst, at(i))
 				i += 2
 				continue
 			}
 		}
-		dst = append(dst, t)
+		dst, gdst = append(dst, t), append(gdst, at(i))
 		i++
 	}
-	return dst
+	return dst, gdst
 }
 
 // adjacency counts adjacent token pairs (x, y) of one scope, x and y below
@@ -83,6 +95,7 @@ func (m *miner) adjacency(ctx context.Context, scope int, ps *phraseSet, size in
 	cnt := newCounter(m.o.MemoryBudget, m.store)
 	var paras []int32
 	var buf []uint32
+	var gap, gbuf []bool
 	for n, di := range m.sc.docs[scope] {
 		if n&255 == 0 {
 			if err := ctx.Err(); err != nil {
@@ -94,9 +107,14 @@ func (m *miner) adjacency(ctx context.Context, scope int, ps *phraseSet, size in
 			return nil, err
 		}
 		paras = paragraphs(paras, len(d.Tokens), d.Breaks)
+		gap = gapMask(gap, len(d.Tokens), d.Gaps)
 		for i := 0; i < len(paras); i += 2 {
-			buf = ps.replace(buf[:0], d.Tokens[paras[i]:paras[i+1]])
+			a, b := paras[i], paras[i+1]
+			buf, gbuf = ps.replace(buf[:0], d.Tokens[a:b], gap[a:b], gbuf[:0])
 			for j := 0; j+1 < len(buf); j++ {
+				if gbuf[j+1] {
+					continue // removed words between: not adjacent
+				}
 				x, y := buf[j], buf[j+1]
 				first[x]++
 				second[y]++

@@ -6,6 +6,7 @@ import (
 	"slices"
 	"sort"
 	"strings"
+	"sync"
 
 	"kinword/internal/access"
 )
@@ -30,6 +31,9 @@ type Table struct {
 
 	scopes []*scopeTable
 	stats  mineStats // from Mine only; not stored
+
+	partsOnce sync.Once
+	parts     map[string][]uint32 // word stem -> phrases containing it
 }
 
 // scopeTable is one scope's counts. Per-term arrays are indexed by table
@@ -225,6 +229,49 @@ func (t *Table) PhrasesFor(v access.Viewer) []Phrase {
 			out = append(out, p)
 		}
 	}
+	return out
+}
+
+// PhrasesWith lists the phrases v may see that contain the word stem
+// ("boundari" -> "boundari layer", "boundari condit"), most documents
+// first. A word absorbed into its phrases has few neighbours of its own;
+// its phrases are its natural refinements.
+func (t *Table) PhrasesWith(v access.Viewer, stem string) []Phrase {
+	t.partsOnce.Do(func() {
+		t.parts = map[string][]uint32{}
+		for id := range t.numTerms() {
+			if t.words[id] < 2 {
+				continue
+			}
+			seen := map[string]bool{}
+			for _, w := range strings.Fields(t.term(uint32(id))) {
+				if !seen[w] {
+					seen[w] = true
+					t.parts[w] = append(t.parts[w], uint32(id))
+				}
+			}
+		}
+	})
+	scopes := t.viewerScopes(v)
+	var out []Phrase
+	for _, id := range t.parts[stem] {
+		p := Phrase{ID: id, Key: t.term(id), Display: t.display(id), Words: int(t.words[id])}
+		for _, s := range scopes {
+			if df := int(t.scopes[s].df[id]); df > 0 {
+				p.Scopes = append(p.Scopes, t.scopes[s].name)
+				p.Docs = max(p.Docs, df)
+			}
+		}
+		if len(p.Scopes) > 0 {
+			out = append(out, p)
+		}
+	}
+	sort.Slice(out, func(i, j int) bool {
+		if out[i].Docs != out[j].Docs {
+			return out[i].Docs > out[j].Docs
+		}
+		return out[i].Key < out[j].Key
+	})
 	return out
 }
 

@@ -12,6 +12,7 @@ import (
 	"strings"
 	"sync"
 	"testing"
+	"time"
 
 	"kinword/internal/doc"
 	"kinword/internal/gen"
@@ -69,14 +70,17 @@ func benchCorpus(tb testing.TB) []doc.Document {
 	return corpusDocs
 }
 
-// ingestKinword Puts docs in batches of benchBatch and commits.
-func ingestKinword(ctx context.Context, ix *Index, docs []doc.Document) error {
+// ingestKinword Puts docs in batches of benchBatch and commits; it returns
+// how long the Commit took.
+func ingestKinword(ctx context.Context, ix *Index, docs []doc.Document) (time.Duration, error) {
 	for i := 0; i < len(docs); i += benchBatch {
 		if err := ix.Put(ctx, docs[i:min(i+benchBatch, len(docs))]); err != nil {
-			return err
+			return 0, err
 		}
 	}
-	return ix.Commit(ctx)
+	t0 := time.Now()
+	err := ix.Commit(ctx)
+	return time.Since(t0), err
 }
 
 // The search benchmarks share one index per process. It lives in a folder
@@ -108,7 +112,7 @@ func sharedIndex(tb testing.TB) *Index {
 			sharedErr = err
 			return
 		}
-		if err := ingestKinword(ctx, ix, docs); err != nil {
+		if _, err := ingestKinword(ctx, ix, docs); err != nil {
 			ix.Close()
 			sharedErr = err
 			return
@@ -138,6 +142,61 @@ func heapMB() float64 {
 	var ms runtime.MemStats
 	runtime.ReadMemStats(&ms)
 	return float64(ms.HeapAlloc) / (1 << 20)
+}
+
+// processCPU returns the CPU time (user + system, all threads) the process
+// has used, from /proc/self/stat (fields 14 and 15, in USER_HZ ticks of
+// 1/100 s, fixed by the Linux ABI). ok is false where /proc is missing, and
+// the CPU metrics are then not reported. Unlike wall time, CPU time is
+// hardly changed by other processes sharing the machine.
+func processCPU() (d time.Duration, ok bool) {
+	b, err := os.ReadFile("/proc/self/stat")
+	if err != nil {
+		return 0, false
+	}
+	// The command name (field 2) may hold spaces; the fields after it
+	// start after the last ')'.
+	i := strings.LastIndexByte(string(b), ')')
+	if i < 0 {
+		return 0, false
+	}
+	f := strings.Fields(string(b[i+1:])) // f[0] is field 3
+	if len(f) < 13 {
+		return 0, false
+	}
+	ut, err1 := strconv.ParseInt(f[11], 10, 64)
+	st, err2 := strconv.ParseInt(f[12], 10, 64)
+	if err1 != nil || err2 != nil {
+		return 0, false
+	}
+	return time.Duration(ut+st) * 10 * time.Millisecond, true
+}
+
+// cpuMeter sums the process CPU time over the timed sections of a
+// benchmark.
+type cpuMeter struct {
+	total time.Duration
+	start time.Duration
+	ok    bool
+}
+
+func (m *cpuMeter) begin() { m.start, m.ok = processCPU() }
+
+func (m *cpuMeter) end() {
+	if now, ok := processCPU(); ok && m.ok {
+		m.total += now - m.start
+	} else {
+		m.ok = false
+	}
+}
+
+// report adds cpu-ms/doc and cores (CPU time over wall time) to b.
+func (m *cpuMeter) report(b *testing.B, docs int) {
+	if !m.ok || m.total == 0 {
+		return
+	}
+	b.ReportMetric(float64(m.total.Microseconds())/1e3/float64(docs*b.N), "cpu-ms/doc")
+	b.ReportMetric(m.total.Seconds()/b.Elapsed().Seconds(), "cores")
 }
 
 // percentile returns the nearest-rank p-th percentile (0 < p <= 100) of

@@ -13,7 +13,7 @@ import (
 )
 
 // fwdMagic opens a forward file; the last byte is the format version.
-var fwdMagic = []byte("KWFWD\x00\x00\x01")
+var fwdMagic = []byte("KWFWD\x00\x00\x03")
 
 // fwdDoc is what Kinword keeps per document beside bleve: enough to score
 // BM25, run feedback and mine associations without re-reading sources.
@@ -22,6 +22,8 @@ type fwdDoc struct {
 	Groups                       []string // sorted; empty = open
 	Tokens                       []uint32 // term IDs in order, stopwords removed
 	Breaks                       []int32  // token offsets where paragraphs start
+	Gaps                         []int32  // token offsets preceded by removed stopwords
+	Surf                         []uint32 // surface-form IDs, parallel to Tokens
 }
 
 // forward is the mutable per-document store. Terms are append-only so IDs
@@ -30,6 +32,10 @@ type forward struct {
 	gen    uint64
 	terms  []string
 	termID map[string]uint32
+	// forms and formID are the dictionary of surface forms (folded words
+	// as written), append-only like terms.
+	forms  []string
+	formID map[string]uint32
 	docs   map[string]*fwdDoc
 	// surf holds surface-form counts per access scope: "" for open
 	// documents, else the group name, so a display form never comes only
@@ -38,7 +44,7 @@ type forward struct {
 }
 
 func newForward() *forward {
-	return &forward{termID: map[string]uint32{}, docs: map[string]*fwdDoc{}, surf: map[string]*text.Surfaces{}}
+	return &forward{termID: map[string]uint32{}, formID: map[string]uint32{}, docs: map[string]*fwdDoc{}, surf: map[string]*text.Surfaces{}}
 }
 
 func (f *forward) intern(stem string) uint32 {
@@ -48,6 +54,16 @@ func (f *forward) intern(stem string) uint32 {
 	id := uint32(len(f.terms))
 	f.terms = append(f.terms, stem)
 	f.termID[stem] = id
+	return id
+}
+
+func (f *forward) internForm(w string) uint32 {
+	if id, ok := f.formID[w]; ok {
+		return id
+	}
+	id := uint32(len(f.forms))
+	f.forms = append(f.forms, w)
+	f.formID[w] = id
 	return id
 }
 
@@ -73,6 +89,10 @@ func (f *forward) save(path string) error {
 	e.uvarint(f.gen)
 	e.uvarint(uint64(len(f.terms)))
 	for _, t := range f.terms {
+		e.str(t)
+	}
+	e.uvarint(uint64(len(f.forms)))
+	for _, t := range f.forms {
 		e.str(t)
 	}
 	scopes := make([]string, 0, len(f.surf))
@@ -111,9 +131,14 @@ func (f *forward) save(path string) error {
 		for _, t := range d.Tokens {
 			e.uvarint(uint64(t))
 		}
-		e.uvarint(uint64(len(d.Breaks)))
-		for _, b := range d.Breaks {
-			e.uvarint(uint64(b))
+		for i := range d.Tokens {
+			e.uvarint(uint64(d.Surf[i]))
+		}
+		for _, offs := range [][]int32{d.Breaks, d.Gaps} {
+			e.uvarint(uint64(len(offs)))
+			for _, b := range offs {
+				e.uvarint(uint64(b))
+			}
 		}
 	}
 	if err := e.finish(); err != nil {
@@ -168,6 +193,13 @@ func loadForward(path string) (*forward, error) {
 		f.termID[t] = uint32(len(f.terms))
 		f.terms = append(f.terms, t)
 	}
+	nf := d.count()
+	f.forms = make([]string, 0, nf)
+	for i := 0; i < nf && d.err == nil; i++ {
+		w := d.str()
+		f.formID[w] = uint32(len(f.forms))
+		f.forms = append(f.forms, w)
+	}
 	ns := d.count()
 	for i := 0; i < ns && d.err == nil; i++ {
 		sc := f.surfaces(d.str())
@@ -193,10 +225,20 @@ func loadForward(path string) (*forward, error) {
 			}
 			x.Tokens[j] = uint32(v)
 		}
-		nb := d.count()
-		x.Breaks = make([]int32, nb)
-		for j := range x.Breaks {
-			x.Breaks[j] = int32(d.uvarint())
+		x.Surf = make([]uint32, ntok)
+		for j := range x.Surf {
+			v := d.uvarint()
+			if v >= uint64(len(f.forms)) && d.err == nil {
+				d.err = fmt.Errorf("%w: surface id %d out of range", ErrCorrupt, v)
+			}
+			x.Surf[j] = uint32(v)
+		}
+		for _, dst := range []*[]int32{&x.Breaks, &x.Gaps} {
+			nb := d.count()
+			*dst = make([]int32, nb)
+			for j := range *dst {
+				(*dst)[j] = int32(d.uvarint())
+			}
 		}
 		f.docs[x.ID] = x
 	}

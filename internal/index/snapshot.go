@@ -30,6 +30,7 @@ type snapshot struct {
 	docLen   []uint32
 	terms    []string
 	termID   map[string]uint32
+	forms    []string
 	classes  []class
 	// Postings in compressed-sparse-row form: term t's documents are
 	// pdocs[off[t]:off[t+1]] (ascending) with frequencies ptf[...].
@@ -46,6 +47,7 @@ type snapshot struct {
 func buildSnapshot(f *forward) *snapshot {
 	s := &snapshot{gen: f.gen, byID: make(map[string]uint32, len(f.docs))}
 	s.terms = f.terms[:len(f.terms):len(f.terms)]
+	s.forms = f.forms[:len(f.forms):len(f.forms)]
 	s.termID = make(map[string]uint32, len(f.termID))
 	for k, v := range f.termID {
 		s.termID[k] = v

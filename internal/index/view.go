@@ -150,6 +150,17 @@ func addForms(dst, src *text.Surfaces, key string) {
 	}
 }
 
+// Gaps returns the token offsets of document d that follow removed
+// stopwords (phrases are not detected across them).
+func (w *View) Gaps(d uint32) []int32 { return w.s.docs[d].Gaps }
+
+// DocSurfaces returns the surface-form IDs of document d's tokens
+// (parallel to Tokens; shared, do not modify).
+func (w *View) DocSurfaces(d uint32) []uint32 { return w.s.docs[d].Surf }
+
+// Surface returns the written (folded) form of a surface ID.
+func (w *View) Surface(id uint32) string { return w.s.forms[id] }
+
 // DocGroups returns the access groups of document d (nil = open).
 func (w *View) DocGroups(d uint32) []string { return w.s.docs[d].Groups }
 

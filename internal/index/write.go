@@ -34,7 +34,7 @@ func (ix *Index) Entries(ctx context.Context) (map[string]Entry, error) {
 // analysed is one document run through the pipeline, before term interning.
 type analysed struct {
 	stems, surfaces []string
-	breaks          []int32
+	breaks, gaps    []int32
 	lang            string
 }
 
@@ -44,10 +44,14 @@ func (ix *Index) analyse(d *doc.Document) analysed {
 		lang = ix.p.DefaultLanguage()
 	}
 	a := analysed{lang: lang}
+	prev := -1
 	ix.p.Analyze(d.Title+"\n\n"+d.Body, lang, func(t text.Token) {
 		if t.ParaStart && len(a.stems) > 0 {
 			a.breaks = append(a.breaks, int32(len(a.stems)))
+		} else if prev >= 0 && t.Pos != prev+1 {
+			a.gaps = append(a.gaps, int32(len(a.stems))) // a stopword was removed here
 		}
+		prev = t.Pos
 		a.stems = append(a.stems, t.Stem)
 		a.surfaces = append(a.surfaces, t.Surface)
 	})
@@ -112,9 +116,10 @@ func (ix *Index) putForward(d *doc.Document, a analysed) {
 	f := ix.fwd
 	groups := access.NormalizeGroups(d.Groups)
 	x := &fwdDoc{ID: d.ID, Source: d.Source, Hash: d.Hash, Lang: a.lang, Dept: d.Department, Groups: groups,
-		Tokens: make([]uint32, len(a.stems)), Breaks: a.breaks}
+		Tokens: make([]uint32, len(a.stems)), Breaks: a.breaks, Gaps: a.gaps, Surf: make([]uint32, len(a.stems))}
 	for i, st := range a.stems {
 		x.Tokens[i] = f.intern(st)
+		x.Surf[i] = f.internForm(a.surfaces[i])
 	}
 	scopes := groups
 	if len(scopes) == 0 {

@@ -43,7 +43,10 @@ type SyncOptions struct {
 	// BatchSize is the number of documents per Sink.Put (and IDs per
 	// Sink.Delete). 0 means 500.
 	BatchSize int
-	// Progress, when set, is called with phase "index" once before the
+	// Progress, when set, is called with phase "docs" after each batch is
+	// written (done = documents handled so far, total 0 = unknown), so a
+	// few large JSON Lines files still show movement; and with phase
+	// "index" once before the
 	// first file (done 0) and after each file, total being the number of
 	// files found; then with phase "delete" before and after deletions,
 	// total being the number of IDs removed. Calls come from one goroutine.
@@ -131,6 +134,7 @@ func Sync(ctx context.Context, roots []string, opts SyncOptions, sink Sink) (sum
 		}
 		sum.Indexed += len(batch)
 		batch = nil // the sink may keep the slice
+		progress(sum.Indexed+sum.Unchanged+len(sum.Skipped), 0, "docs")
 		return nil
 	}
 	emit := func(r result) error {
