@@ -93,11 +93,15 @@ func runMine(ctx context.Context, e *env, args []string) error {
 	if err := tbl.Write(e.tableFile()); err != nil {
 		return err
 	}
-	info := tbl.Info()
+	el := time.Since(start).Seconds()
+	info, rs := tbl.Info(), tbl.RunStats()
 	st, _ := os.Stat(e.tableFile())
 	if e.json {
-		return e.printJSON(map[string]any{"table": e.tableFile(), "bytes": st.Size(), "seconds": time.Since(start).Seconds(), "info": info})
+		return e.printJSON(map[string]any{"table": e.tableFile(), "bytes": st.Size(), "seconds": el, "info": info,
+			"spills": rs.Spills, "tokens": rs.Tokens, "tokens_per_second": float64(rs.Tokens) / el,
+			"pair_increments": rs.PairIncrements, "pairs_per_second": float64(rs.PairIncrements) / el})
 	}
-	fmt.Fprintf(e.stdout, "mined %d documents in %.1f s: %s (%.1f MiB)\n", ix.Len(), time.Since(start).Seconds(), e.tableFile(), float64(st.Size())/(1<<20))
+	fmt.Fprintf(e.stdout, "mined %d documents in %.1f s: %s (%.1f MiB, %d terms, %d phrases, %d scopes, %d spills)\n",
+		ix.Len(), el, e.tableFile(), float64(st.Size())/(1<<20), info.Terms, info.Phrases, len(info.Scopes), rs.Spills)
 	return nil
 }

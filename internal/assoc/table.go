@@ -291,6 +291,20 @@ type Info struct {
 	Scopes        []ScopeInfo
 }
 
+// RunStats describe the Mine run that built a table (zero for a loaded
+// table): sorted runs spilled to disk under the memory budget, tokens read,
+// pair counts incremented.
+type RunStats struct {
+	Spills         int
+	Tokens         int64
+	PairIncrements int64
+}
+
+// RunStats returns the statistics of the Mine run that built t.
+func (t *Table) RunStats() RunStats {
+	return RunStats{Spills: t.stats.spills, Tokens: t.stats.toks, PairIncrements: t.stats.incr}
+}
+
 // ScopeInfo summarises one scope.
 type ScopeInfo struct {
 	Name       string // OpenScope or the access group

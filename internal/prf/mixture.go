@@ -1,9 +1,6 @@
 package prf
 
-import (
-	"math"
-	"slices"
-)
+import "math"
 
 // MixtureOptions configure mixture-model feedback. The zero value gives
 // every default.
@@ -31,7 +28,7 @@ type MixtureOptions struct {
 	MaxIterations int
 }
 
-// Defaults of MixtureOptions not shared with RM3Options.
+// Defaults of MixtureOptions.
 const (
 	DefaultBackground    = 0.5
 	DefaultTolerance     = 1e-8
@@ -102,23 +99,13 @@ func (m *Mixture) Expand(q []QueryTerm, docs []Doc, st Stats) Result {
 	if qsum > 0 {
 		qdist = normalised(qt, qsum)
 	}
-	fb := prepare(docs, m.docs)
-	if len(fb) == 0 {
-		out := slices.Clone(qdist)
-		sortByWeight(out)
-		return Result{Query: out}
+	var res Result
+	if fb := prepare(docs, m.docs); len(fb) > 0 {
+		var theta []Weighted
+		theta, res.Iterations = m.fit(pool(fb, func(_, tf int) float64 { return float64(tf) }), st)
+		res.Feedback = renormalise(topN(theta, m.terms))
 	}
-	theta, iters := m.fit(pool(fb, func(_, tf int) float64 { return float64(tf) }), st)
-	res := Result{Feedback: renormalise(topN(theta, m.terms)), Iterations: iters}
-	switch {
-	case res.Feedback == nil:
-		res.Query = slices.Clone(qdist)
-		sortByWeight(res.Query)
-	case qdist == nil:
-		res.Query = slices.Clone(res.Feedback)
-	default:
-		res.Query = interpolate(qdist, res.Feedback, m.orig)
-	}
+	res.Query = combine(qdist, res.Feedback, m.orig)
 	return res
 }
 
@@ -126,49 +113,59 @@ func (m *Mixture) Expand(q []QueryTerm, docs []Doc, st Stats) Result {
 // the same order, with the number of iterations run.
 func (m *Mixture) fit(counts []Weighted, st Stats) ([]Weighted, int) {
 	n := len(counts)
-	theta := make([]float64, n)
-	next := make([]float64, n)
-	bg := make([]float64, n) // λ·p(w|C)
+	c := make([]float64, n)     // c(w,F)
+	theta := make([]float64, n) // p(w|θ_F), normalised
+	raw := make([]float64, n)   // c(w,F)·t(w), the unnormalised M-step
+	bg := make([]float64, n)    // λ·p(w|C)
 	var total float64
-	for _, c := range counts {
-		total += c.Weight
+	for i, x := range counts {
+		c[i] = x.Weight
+		total += x.Weight
 	}
 	collLen := float64(st.TotalLen())
-	for i, c := range counts {
-		theta[i] = c.Weight / total
+	for i, x := range counts {
+		theta[i] = c[i] / total
 		if collLen > 0 {
-			bg[i] = m.lambda * float64(st.CF(c.ID)) / collLen
+			bg[i] = m.lambda * float64(st.CF(x.ID)) / collLen
 		}
 	}
-	iters := 0
-	for iters < m.maxIter {
-		iters++
-		var sum float64
-		for i, c := range counts {
-			fg := (1 - m.lambda) * theta[i]
-			var t float64
-			if fg > 0 {
-				t = fg / (fg + bg[i])
-			}
-			next[i] = c.Weight * t
-			sum += next[i]
-		}
-		if !(sum > 0) {
-			break
-		}
+	// Each pass normalises the previous M-step (raw/sum), measures the
+	// change it made, and runs the next E- and M-step on the result, so one
+	// pass over the terms serves one iteration.
+	a := 1 - m.lambda
+	copy(raw, theta)
+	sum, iters := 1.0, 0
+	for ; iters < m.maxIter; iters++ {
+		inv := 1 / sum
 		var change float64
-		for i := range next {
-			next[i] /= sum
-			change = max(change, math.Abs(next[i]-theta[i]))
+		sum = 0
+		theta, raw, bg := theta[:n], raw[:n], bg[:n] // bounds-check hints
+		for i, cw := range c {
+			th := raw[i] * inv
+			if d := math.Abs(th - theta[i]); d > change {
+				change = d
+			}
+			theta[i] = th
+			var r float64
+			if fg := a * th; fg > 0 {
+				r = cw * fg / (fg + bg[i])
+			}
+			raw[i] = r
+			sum += r
 		}
-		theta, next = next, theta
-		if change < m.tol {
+		if iters > 0 && change < m.tol || !(sum > 0) {
 			break
+		}
+	}
+	if sum > 0 && iters == m.maxIter {
+		inv := 1 / sum // the last M-step is not yet in theta
+		for i := range theta {
+			theta[i] = raw[i] * inv
 		}
 	}
 	out := make([]Weighted, n)
-	for i, c := range counts {
-		out[i] = Weighted{c.ID, theta[i]}
+	for i, x := range counts {
+		out[i] = Weighted{x.ID, theta[i]}
 	}
 	return out, iters
 }

@@ -78,35 +78,62 @@ func cleanTerms(ts []TermFreq) []TermFreq {
 
 // pool merges the documents' term lists and returns, for every distinct
 // term in ascending ID order, the sum over the documents containing it of
-// f(document index, term frequency).
+// f(document index, term frequency). The lists are merged pairwise, in
+// ⌈log2 k⌉ linear passes, which is cheaper than scanning k list heads per
+// output term.
 func pool(docs []fbDoc, f func(d, tf int) float64) []Weighted {
-	size := 0
+	total := 0
 	for _, d := range docs {
-		size = max(size, len(d.terms))
+		total += len(d.terms)
 	}
-	out := make([]Weighted, 0, 2*size)
-	pos := make([]int, len(docs))
-	for {
-		next, found := uint32(0), false
-		for d, p := range pos {
-			if p < len(docs[d].terms) {
-				if id := docs[d].terms[p].Term; !found || id < next {
-					next, found = id, true
-				}
-			}
+	src := make([]Weighted, 0, total)
+	ends := make([]int, 0, len(docs)) // end offset of each run in src
+	for d, doc := range docs {
+		for _, t := range doc.terms {
+			src = append(src, Weighted{t.Term, f(d, t.TF)})
 		}
-		if !found {
-			return out
-		}
-		var v float64
-		for d, p := range pos {
-			if p < len(docs[d].terms) && docs[d].terms[p].Term == next {
-				v += f(d, docs[d].terms[p].TF)
-				pos[d]++
-			}
-		}
-		out = append(out, Weighted{next, v})
+		ends = append(ends, len(src))
 	}
+	dst := make([]Weighted, 0, total)
+	for len(ends) > 1 {
+		dst = dst[:0]
+		next := ends[:0] // overwrites ends behind the reads
+		start := 0
+		for i := 0; i < len(ends); i += 2 {
+			mid, end := ends[i], ends[i]
+			if i+1 < len(ends) {
+				end = ends[i+1]
+			}
+			dst = mergeRuns(dst, src[start:mid], src[mid:end])
+			next = append(next, len(dst))
+			start = end
+		}
+		ends = next
+		src, dst = dst, src
+	}
+	return src
+}
+
+// mergeRuns appends the merge of the ID-sorted runs a and b to dst, adding
+// the weights of IDs present in both.
+func mergeRuns(dst, a, b []Weighted) []Weighted {
+	i, j := 0, 0
+	for i < len(a) && j < len(b) {
+		switch {
+		case a[i].ID < b[j].ID:
+			dst = append(dst, a[i])
+			i++
+		case a[i].ID > b[j].ID:
+			dst = append(dst, b[j])
+			j++
+		default:
+			dst = append(dst, Weighted{a[i].ID, a[i].Weight + b[j].Weight})
+			i++
+			j++
+		}
+	}
+	dst = append(dst, a[i:]...)
+	return append(dst, b[j:]...)
 }
 
 // termFreq returns the frequency of id in the sorted list ts.
@@ -148,11 +175,15 @@ func topN(ws []Weighted, n int) []Weighted {
 		copy(best[i+1:], best[i:len(best)-1])
 		best[i] = w
 	}
+	if len(best) == 0 {
+		return nil
+	}
 	return best
 }
 
-// renormalise scales ws in place to sum to 1; it returns nil when the sum
-// is not positive.
+// renormalise scales ws in place to sum to 1 and re-sorts it (division
+// can make neighbouring weights equal, and ties go by ID); it returns nil
+// when the sum is not positive.
 func renormalise(ws []Weighted) []Weighted {
 	var sum float64
 	for _, w := range ws {
@@ -164,5 +195,6 @@ func renormalise(ws []Weighted) []Weighted {
 	for i := range ws {
 		ws[i].Weight /= sum
 	}
+	sortByWeight(ws)
 	return ws
 }

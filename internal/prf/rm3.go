@@ -1,9 +1,6 @@
 package prf
 
-import (
-	"math"
-	"slices"
-)
+import "math"
 
 // RM3Options configure RM3. The zero value gives every default.
 type RM3Options struct {
@@ -26,13 +23,8 @@ type RM3Options struct {
 	Mu float64
 }
 
-// Defaults of RM3Options.
-const (
-	DefaultFeedbackDocs  = 10
-	DefaultFeedbackTerms = 20
-	DefaultOrigWeight    = 0.5
-	DefaultMu            = 1000
-)
+// DefaultMu is the default Dirichlet prior of RM3Options.Mu, in tokens.
+const DefaultMu = 1000
 
 // RM3 is the relevance-model feedback of Lavrenko & Croft (SIGIR 2001),
 // "Relevance-Based Language Models", in its RM1 form
@@ -94,25 +86,13 @@ func (m *RM3) Expand(q []QueryTerm, docs []Doc, st Stats) Result {
 	if qsum > 0 {
 		qdist = normalised(qt, qsum)
 	}
-	fb := prepare(docs, m.docs)
-	if len(fb) == 0 {
-		out := slices.Clone(qdist)
-		sortByWeight(out)
-		return Result{Query: out}
+	var res Result
+	if fb := prepare(docs, m.docs); len(fb) > 0 {
+		post := m.posterior(qt, fb, st)
+		rel := pool(fb, func(d, tf int) float64 { return post[d] * float64(tf) / fb[d].len })
+		res.Feedback = renormalise(topN(rel, m.terms))
 	}
-	post := m.posterior(qt, fb, st)
-	rel := pool(fb, func(d, tf int) float64 { return post[d] * float64(tf) / fb[d].len })
-	res := Result{Feedback: renormalise(topN(rel, m.terms))}
-	if res.Feedback == nil {
-		res.Query = slices.Clone(qdist)
-		sortByWeight(res.Query)
-		return res
-	}
-	if qdist == nil {
-		res.Query = slices.Clone(res.Feedback)
-		return res
-	}
-	res.Query = interpolate(qdist, res.Feedback, m.lambda)
+	res.Query = combine(qdist, res.Feedback, m.lambda)
 	return res
 }
 

@@ -36,6 +36,13 @@ import (
 	"slices"
 )
 
+// Defaults of the options every model has.
+const (
+	DefaultFeedbackDocs  = 10
+	DefaultFeedbackTerms = 20
+	DefaultOrigWeight    = 0.5 // RM3 and Mixture
+)
+
 // ErrBadOptions reports an option value outside its documented range.
 var ErrBadOptions = errors.New("prf: bad options")
 
@@ -106,9 +113,13 @@ type Result struct {
 }
 
 // byWeight orders weighted terms: higher weight first, then lower ID.
+// Weights are never NaN here (inputs are filtered).
 func byWeight(a, b Weighted) int {
-	if c := cmp.Compare(b.Weight, a.Weight); c != 0 {
-		return c
+	switch {
+	case a.Weight > b.Weight:
+		return -1
+	case a.Weight < b.Weight:
+		return 1
 	}
 	return cmp.Compare(a.ID, b.ID)
 }
@@ -145,6 +156,22 @@ func normalised(ws []Weighted, sum float64) []Weighted {
 	out := make([]Weighted, len(ws))
 	for i, w := range ws {
 		out[i] = Weighted{w.ID, w.Weight / sum}
+	}
+	return out
+}
+
+// combine returns the expanded query of RM3 and Mixture: the interpolation
+// of qdist and the feedback model, or whichever of the two is non-empty.
+func combine(qdist, feedback []Weighted, lambda float64) []Weighted {
+	var out []Weighted
+	switch {
+	case feedback == nil:
+		out = slices.Clone(qdist)
+		sortByWeight(out)
+	case qdist == nil:
+		out = slices.Clone(feedback)
+	default:
+		out = interpolate(qdist, feedback, lambda)
 	}
 	return out
 }
