@@ -28,7 +28,8 @@ func runEval(ctx context.Context, e *env, args []string) error {
 	runFile := fs.String("run", "", "also write a TREC run file (qid Q0 docid rank score tag) here")
 	perTopic := fs.Bool("per-topic", false, "print the per-topic table too")
 	markdown := fs.Bool("markdown", false, "print Markdown tables instead of plain text")
-	depth := fs.Int("depth", 1000, "documents ranked per topic")
+	methods := fs.String("methods", "bm25,rm3,mixture,rocchio", "comma-separated methods: bm25, rm3, mixture, rocchio (feedback methods get 2-fold cross-validated parameters)")
+	seed := fs.Uint64("seed", 1, "seed for the cross-validation split and the randomization test")
 	if _, err := e.parse(fs, c, args); err != nil {
 		return err
 	}
@@ -70,27 +71,23 @@ func runEval(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	runs := map[string][]eval.Scored{}
+	want, err := parseMethods(*methods)
+	if err != nil {
+		return err
+	}
 	// Judged topics are run by a viewer who may read every group, so that
 	// restricted relevant documents count as they do for their askers.
 	view := ix.View(access.Viewer{Groups: ix.Groups()})
 	lim := index.QueryLimits{MaxBytes: 1 << 16, MaxTerms: 4096}
-	for _, t := range col.Topics {
-		q, err := index.ParseQuery(p, t.Text, lim)
-		if err != nil {
-			e.log.Warn("topic has no searchable words", "qid", t.ID)
-			runs[t.ID] = nil
-			continue
-		}
-		res, err := view.Search(ctx, q, e.bm25(), *depth)
-		if err != nil {
-			return err
-		}
-		for _, h := range res.Hits {
-			runs[t.ID] = append(runs[t.ID], eval.Scored{DocID: h.ID, Score: h.Score})
-		}
+	set, err := newEvalSet(ctx, view, e.bm25(), col.Topics, col.Qrels, func(s string) ([]index.QueryTerm, error) { return index.ParseQuery(p, s, lim) })
+	if err != nil {
+		return err
 	}
-	if *runFile != "" {
+	per, runs, err := set.run(ctx, nil)
+	if err != nil {
+		return err
+	}
+	if *runFile != "" { // the BM25 run
 		f, err := os.Create(*runFile)
 		if err != nil {
 			return fmt.Errorf("eval: run file: %w", err)
@@ -104,9 +101,27 @@ func runEval(ctx context.Context, e *env, args []string) error {
 		}
 	}
 	rep := &eval.Report{Collection: col.Name}
-	per := eval.EvaluateScored(runs, col.Qrels)
 	if err := rep.Add(eval.NewRun("bm25", per)); err != nil {
 		return err
+	}
+	chosen := map[string][]string{}
+	for _, m := range want {
+		if m == "bm25" {
+			continue
+		}
+		o, err := set.crossValidate(ctx, m, feedbackGrid(), *seed)
+		if err != nil {
+			return err
+		}
+		chosen[m] = o.Chosen
+		if err := rep.Add(eval.NewRun(m, o.PerTopic)); err != nil {
+			return err
+		}
+	}
+	if len(rep.Runs) > 1 {
+		if err := rep.CompareAgainst("bm25", eval.CompareOptions{Seed: *seed}); err != nil {
+			return err
+		}
 	}
 	kinds, err := readKinds(filepath.Join(*dir, "topic-kinds.tsv"))
 	if err != nil {
@@ -126,9 +141,6 @@ func runEval(ctx context.Context, e *env, args []string) error {
 		misses = append(misses, countMisses(kind, sub, runs, col.Qrels))
 	}
 	if e.json {
-		if len(misses) == 0 {
-			return rep.WriteJSON(e.stdout)
-		}
 		var buf strings.Builder
 		if err := rep.WriteJSON(&buf); err != nil {
 			return err
@@ -138,6 +150,7 @@ func runEval(ctx context.Context, e *env, args []string) error {
 			return err
 		}
 		obj["no_relevant_in_top_10"] = misses
+		obj["parameters"] = chosen
 		return e.printJSON(obj)
 	}
 	fmt.Fprintf(e.stdout, "collection %s: %d documents, %d judged topics, BM25 k1 %.2f b %.2f\n\n", col.Name, n, len(col.Topics), e.cfg.Index.BM25K1, e.cfg.Index.BM25B)
@@ -148,6 +161,11 @@ func runEval(ctx context.Context, e *env, args []string) error {
 	}
 	if err != nil {
 		return err
+	}
+	for _, m := range want {
+		if c := chosen[m]; len(c) > 0 {
+			fmt.Fprintf(e.stdout, "%s parameters (2-fold cross-validation): %s\n", m, strings.Join(c, "; "))
+		}
 	}
 	for _, m := range misses {
 		fmt.Fprintf(e.stdout, "%s topics: %d of %d have no relevant document in the top 10, %d none of their best-graded ones\n", m.Kind, m.Missed, m.Topics, m.MissedBest)

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"slices"
 	"sort"
 	"strings"
 
@@ -88,4 +89,28 @@ func countMisses(kind string, sub map[string]eval.Measures, runs map[string][]ev
 		}
 	}
 	return m
+}
+
+// evalMethods are the methods eval knows, in report order.
+var evalMethods = []string{"bm25", "rm3", "mixture", "rocchio"}
+
+func parseMethods(s string) ([]string, error) {
+	seen := map[string]bool{}
+	for _, m := range strings.Split(s, ",") {
+		m = strings.TrimSpace(m)
+		if m == "" {
+			continue
+		}
+		if !slices.Contains(evalMethods, m) {
+			return nil, usagef("unknown method %q (known: %s)", m, strings.Join(evalMethods, ", "))
+		}
+		seen[m] = true
+	}
+	var out []string
+	for _, m := range evalMethods {
+		if seen[m] {
+			out = append(out, m)
+		}
+	}
+	return out, nil
 }

@@ -51,7 +51,7 @@ func TestEvalBM25OnPublicCollections(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			code, out, errs := runCLI(t, "eval", "--collection", filepath.Join(dir, c.name), "--json", "--data", t.TempDir())
+			code, out, errs := runCLI(t, "eval", "--collection", filepath.Join(dir, c.name), "--json", "--data", t.TempDir(), "--methods", "bm25")
 			if code != 0 {
 				t.Fatalf("exit %d: %s", code, errs)
 			}
