@@ -109,7 +109,7 @@ func runEval(ctx context.Context, e *env, args []string) error {
 		if m == "bm25" {
 			continue
 		}
-		o, err := set.crossValidate(ctx, m, feedbackGrid(), *seed)
+		o, err := set.crossValidate(ctx, m, feedbackGrid(m), *seed)
 		if err != nil {
 			return err
 		}

@@ -126,22 +126,39 @@ func prfExpander(v *index.View, m prfModel, fbDocs int) expander {
 type feedbackConfig struct {
 	Docs, Terms int
 	Orig        float64 // original-query weight (RM3, mixture) or Rocchio beta
+	// Alt is the method's fourth parameter: RM3's Dirichlet mu, the
+	// mixture model's background weight, Rocchio's gamma (unused: 0).
+	Alt float64
 }
 
 func (c feedbackConfig) String(method string) string {
 	if method == "rocchio" {
 		return fmt.Sprintf("docs=%d terms=%d beta=%.2f", c.Docs, c.Terms, rocchioBeta(c))
 	}
-	return fmt.Sprintf("docs=%d terms=%d orig=%.2f", c.Docs, c.Terms, c.Orig)
+	if method == "rm3" {
+		return fmt.Sprintf("docs=%d terms=%d orig=%.2f mu=%.0f", c.Docs, c.Terms, c.Orig, c.Alt)
+	}
+	return fmt.Sprintf("docs=%d terms=%d orig=%.2f background=%.2f", c.Docs, c.Terms, c.Orig, c.Alt)
 }
 
-// feedbackGrid is the parameter grid searched by cross-validation.
-func feedbackGrid() []feedbackConfig {
+// feedbackGrid is the parameter grid searched by cross-validation for a
+// method: feedback documents, feedback terms, original-query weight, and
+// the method's own smoothing (RM3's mu, the mixture's background weight).
+func feedbackGrid(method string) []feedbackConfig {
+	alts := []float64{0}
+	switch method {
+	case "rm3":
+		alts = []float64{300, 1000}
+	case "mixture":
+		alts = []float64{0.5, 0.9}
+	}
 	var g []feedbackConfig
 	for _, d := range []int{5, 10, 20} {
 		for _, t := range []int{10, 25, 50} {
 			for _, o := range []float64{0.3, 0.5, 0.7} {
-				g = append(g, feedbackConfig{d, t, o})
+				for _, a := range alts {
+					g = append(g, feedbackConfig{d, t, o, a})
+				}
 			}
 		}
 	}
@@ -152,9 +169,9 @@ func feedbackGrid() []feedbackConfig {
 func newModel(method string, c feedbackConfig, p rank.BM25) (prfModel, error) {
 	switch method {
 	case "rm3":
-		return prf.NewRM3(prf.RM3Options{FeedbackDocs: c.Docs, FeedbackTerms: c.Terms, OrigWeight: c.Orig})
+		return prf.NewRM3(prf.RM3Options{FeedbackDocs: c.Docs, FeedbackTerms: c.Terms, OrigWeight: c.Orig, Mu: c.Alt})
 	case "mixture":
-		return prf.NewMixture(prf.MixtureOptions{FeedbackDocs: c.Docs, FeedbackTerms: c.Terms, OrigWeight: c.Orig, Tolerance: 1e-6})
+		return prf.NewMixture(prf.MixtureOptions{FeedbackDocs: c.Docs, FeedbackTerms: c.Terms, OrigWeight: c.Orig, Background: c.Alt, Tolerance: 1e-6})
 	case "rocchio":
 		return prf.NewRocchio(prf.RocchioOptions{FeedbackDocs: c.Docs, FeedbackTerms: c.Terms, Beta: rocchioBeta(c), BM25: p})
 	}

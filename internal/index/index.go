@@ -173,3 +173,7 @@ func (ix *Index) Groups() []string {
 	sort.Strings(out)
 	return out
 }
+
+// Warm builds the current snapshot's postings now rather than on the first
+// search (a server calls it before reporting ready).
+func (ix *Index) Warm() { ix.snap.Load().postings() }

@@ -47,6 +47,7 @@ func (a *accumulator) reset() {
 // postings returns the documents and frequencies of a query key in the
 // snapshot (all documents; callers filter by view).
 func (w *View) postings(key string) (docs, tfs []uint32) {
+	w.s.postings()
 	parts := splitKey(key)
 	if len(parts) == 1 {
 		id, ok := w.s.termID[parts[0]]

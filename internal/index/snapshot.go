@@ -34,10 +34,12 @@ type snapshot struct {
 	classes  []class
 	// Postings in compressed-sparse-row form: term t's documents are
 	// pdocs[off[t]:off[t+1]] (ascending) with frequencies ptf[...].
-	off   []uint32
-	pdocs []uint32
-	ptf   []uint32
-	surf  map[string]*text.Surfaces
+	off      []uint32
+	pdocs    []uint32
+	ptf      []uint32
+	postOnce sync.Once // postings are built on first use: mining and ingest never need them
+	dfTotal  []uint32
+	surf     map[string]*text.Surfaces
 
 	scopes sync.Map // access.Viewer groups key -> *scope
 	accs   sync.Pool
@@ -87,7 +89,20 @@ func buildSnapshot(f *forward) *snapshot {
 			}
 		}
 	}
-	// CSR postings: offsets from total df, then fill in document order.
+	s.dfTotal = dfTotal
+	s.accs.New = func() any { return newAccumulator(len(s.docs)) }
+	return s
+}
+
+// postings builds the CSR postings once: offsets from total df, then fill
+// in document order.
+func (s *snapshot) postings() {
+	s.postOnce.Do(s.buildPostings)
+}
+
+func (s *snapshot) buildPostings() {
+	nt := len(s.terms)
+	dfTotal := s.dfTotal
 	s.off = make([]uint32, nt+1)
 	for t := 0; t < nt; t++ {
 		s.off[t+1] = s.off[t] + dfTotal[t]
@@ -112,8 +127,7 @@ func buildSnapshot(f *forward) *snapshot {
 			}
 		}
 	}
-	s.accs.New = func() any { return newAccumulator(len(s.docs)) }
-	return s
+	s.dfTotal = nil
 }
 
 // scope is the part of the collection one viewer may read, with its
