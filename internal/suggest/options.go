@@ -1,0 +1,239 @@
+package suggest
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"kinword/internal/prf"
+)
+
+// Defaults used when an Options field is zero.
+const (
+	DefaultModel             = "rm3"
+	DefaultK                 = 5
+	DefaultFeedbackTerms     = 50
+	DefaultFeedbackWeight    = 0.5
+	DefaultAssocWeight       = 0.3
+	DefaultCoverageWeight    = 0.2
+	DefaultPhraseWeight      = 0.1
+	DefaultMaxDFShare        = 0.2
+	DefaultMinDF             = 2
+	DefaultMinLetters        = 3
+	DefaultMinResidualIDF    = 0.2
+	DefaultResidualIDFMinDF  = 10
+	DefaultLambda            = 0.7
+	DefaultStrongShare       = 0.5
+	DefaultMinShare          = 0.2
+	DefaultNeighboursPerTerm = 20
+	DefaultPhrasesPerTerm    = 5
+	DefaultStrongCandidates  = 8
+	DefaultAutoTerms         = 10
+	DefaultExpandWeight      = 0.3
+)
+
+// Options tune an Engine. Every zero value means the documented default;
+// for the weights a negative value means 0 (the part is switched off), and
+// for the thresholds it switches the filter or rule off, as each field
+// says.
+type Options struct {
+	// Model is the feedback model: "rm3" (RM3's relevance model RM1, the
+	// default), "mixture" (Zhai & Lafferty's θ_F) or "rocchio".
+	Model string
+	// RM3, Mixture and Rocchio configure the models (see internal/prf).
+	// Their FeedbackDocs default to prf's 10; their FeedbackTerms default
+	// here to DefaultFeedbackTerms (50) rather than prf's 20, because the
+	// filters drop many of a model's strongest terms.
+	RM3     prf.RM3Options
+	Mixture prf.MixtureOptions
+	Rocchio prf.RocchioOptions
+
+	// The combined score is
+	//   FeedbackWeight·feedback + AssocWeight·association +
+	//   CoverageWeight·coverage + PhraseWeight·phrase,
+	// each part in [0, 1] (see Evidence.Parts). Defaults 0.5, 0.3, 0.2, 0.1.
+	FeedbackWeight float64
+	AssocWeight    float64
+	CoverageWeight float64
+	PhraseWeight   float64
+
+	// MaxDFShare drops terms in more than this share of readable documents
+	// (DF/N). Default 0.2; negative: off.
+	MaxDFShare float64
+	// MinDF drops terms in fewer readable documents. Default 2; negative
+	// means 1 (a term no readable document has is always dropped).
+	MinDF int
+	// MinLetters drops single words with fewer letters. Default 3;
+	// negative: off.
+	MinLetters int
+	// MinResidualIDF drops generic words: a single word whose residual IDF
+	// (ResidualIDF) is below it, in bits. Default 0.2, chosen from data.
+	// On Cranfield (1,400 abstracts) and CISI (1,460 abstracts) the
+	// reporting words present, discuss, describ, made score 0.03-0.13 and
+	// result 0.13 and 0.14; on the Tarnwick demo intranet (287 open
+	// documents) describ 0.02, make 0.07, includ 0.10, follow 0.15, with
+	// result just above at 0.20. Topical words score well above (Cranfield
+	// flutter 1.97, nozzl 1.52, shock 1.27; CISI citat 1.09, index 1.03,
+	// librari 0.87; Tarnwick leakag 1.21, permit 1.17, valv 1.01). Between
+	// 0.2 and 0.3 generic and topical words mix (Cranfield general, form
+	// and momentum, adiabat), so a higher value costs topical words; even
+	// at 0.2 a few topical words of abstracts, used once each, fall below
+	// (Cranfield fourier, schlieren). Negative: off.
+	MinResidualIDF float64
+	// ResidualIDFMinDF exempts words in fewer readable documents from the
+	// residual-IDF test: with few documents a topical word used once per
+	// document cannot be told from a generic one. On the Tarnwick demo the
+	// words of DF 3-9 below 0.2 include switchgear, corros, standpip,
+	// potabl, firmwar and payslip, while those of DF 10-19 below it are
+	// mostly generic (straight, sure, involv, given, typic). Default 10; a
+	// negative value tests every word.
+	ResidualIDFMinDF int
+
+	// Lambda is MMR's λ: each pick maximises λ·score − (1−λ)·(max
+	// similarity to the suggestions already chosen), scores scaled so the
+	// best is 1. Default 0.7; negative means 0 (diversity alone).
+	Lambda float64
+	// StrongShare: a phrase and one of its own parts are both offered only
+	// when both score at least this share of the best score (and the part
+	// also occurs in a feedback document without the phrase). Default 0.5;
+	// negative means 0 (MMR still penalises the pair).
+	StrongShare float64
+	// MinShare: candidates scoring below this share of the best score are
+	// never offered, however few suggestions that leaves. Default 0.2;
+	// negative means 0 (fill K whatever the scores).
+	MinShare float64
+	// K is the number of suggestions when a Request asks for 0. Default 5.
+	K int
+	// NeighboursPerTerm is the number of association neighbours read per
+	// query term. Default 20.
+	NeighboursPerTerm int
+	// PhrasesPerTerm is the number of mined phrases read per query word and
+	// per strong candidate (most documents first). Default 5.
+	PhrasesPerTerm int
+	// StrongCandidates is the number of best single-word candidates whose
+	// mined phrases are looked up. Default 8.
+	StrongCandidates int
+	// AutoTerms is the number of expansion terms AutoExpand adds.
+	// Default 10.
+	AutoTerms int
+	// Language selects the stopword list (a Snowball language name; ""
+	// means English).
+	Language string
+}
+
+// resolve fills in defaults and validates.
+func (o Options) resolve() (Options, error) {
+	o.Model = strings.ToLower(strings.TrimSpace(o.Model))
+	if o.Model == "" {
+		o.Model = DefaultModel
+	}
+	switch o.Model {
+	case "rm3", "mixture", "rocchio":
+	default:
+		return o, fmt.Errorf("%w %q (want rm3, mixture or rocchio)", ErrUnknownModel, o.Model)
+	}
+	for _, f := range []struct {
+		p   *float64
+		def float64
+	}{
+		{&o.FeedbackWeight, DefaultFeedbackWeight}, {&o.AssocWeight, DefaultAssocWeight},
+		{&o.CoverageWeight, DefaultCoverageWeight}, {&o.PhraseWeight, DefaultPhraseWeight},
+		{&o.Lambda, DefaultLambda}, {&o.StrongShare, DefaultStrongShare}, {&o.MinShare, DefaultMinShare},
+	} {
+		switch {
+		case math.IsNaN(*f.p) || math.IsInf(*f.p, 0):
+			return o, fmt.Errorf("%w: %g is not a finite number", ErrBadOptions, *f.p)
+		case *f.p == 0:
+			*f.p = f.def
+		case *f.p < 0:
+			*f.p = 0
+		}
+	}
+	if o.Lambda > 1 || o.StrongShare > 1 || o.MinShare > 1 {
+		return o, fmt.Errorf("%w: Lambda %g, StrongShare %g and MinShare %g must be in [0, 1]",
+			ErrBadOptions, o.Lambda, o.StrongShare, o.MinShare)
+	}
+	for _, f := range []struct {
+		p        *float64
+		def, off float64
+	}{
+		{&o.MaxDFShare, DefaultMaxDFShare, math.Inf(1)},
+		{&o.MinResidualIDF, DefaultMinResidualIDF, math.Inf(-1)},
+	} {
+		switch {
+		case math.IsNaN(*f.p):
+			return o, fmt.Errorf("%w: threshold is NaN", ErrBadOptions)
+		case *f.p == 0:
+			*f.p = f.def
+		case *f.p < 0:
+			*f.p = f.off
+		}
+	}
+	for _, f := range []struct {
+		p   *int
+		def int
+	}{
+		{&o.MinLetters, DefaultMinLetters},
+		{&o.ResidualIDFMinDF, DefaultResidualIDFMinDF}, {&o.K, DefaultK},
+		{&o.NeighboursPerTerm, DefaultNeighboursPerTerm}, {&o.PhrasesPerTerm, DefaultPhrasesPerTerm},
+		{&o.StrongCandidates, DefaultStrongCandidates}, {&o.AutoTerms, DefaultAutoTerms},
+	} {
+		switch {
+		case *f.p == 0:
+			*f.p = f.def
+		case *f.p < 0:
+			*f.p = 0
+		}
+	}
+	switch {
+	case o.MinDF == 0:
+		o.MinDF = DefaultMinDF
+	case o.MinDF < 0:
+		o.MinDF = 1
+	}
+	if o.RM3.FeedbackTerms == 0 {
+		o.RM3.FeedbackTerms = DefaultFeedbackTerms
+	}
+	if o.Mixture.FeedbackTerms == 0 {
+		o.Mixture.FeedbackTerms = DefaultFeedbackTerms
+	}
+	if o.Rocchio.FeedbackTerms == 0 {
+		o.Rocchio.FeedbackTerms = DefaultFeedbackTerms
+	}
+	return o, nil
+}
+
+// buildModel constructs the feedback model and records the numbers
+// AutoExpand and coverage need: the original-query coefficient and the
+// number of feedback documents, resolved as prf resolves them (zero means
+// the default, negative means 0).
+func (e *Engine) buildModel() error {
+	frac := func(v, def float64) float64 {
+		if v == 0 {
+			return def
+		}
+		return max(v, 0)
+	}
+	docs := func(n int) int {
+		if n == 0 {
+			return prf.DefaultFeedbackDocs
+		}
+		return n
+	}
+	var err error
+	switch o := e.opt; o.Model {
+	case "rm3":
+		e.model, err = prf.NewRM3(o.RM3)
+		e.origCoef, e.fbDocs = frac(o.RM3.OrigWeight, prf.DefaultOrigWeight), docs(o.RM3.FeedbackDocs)
+	case "mixture":
+		e.model, err = prf.NewMixture(o.Mixture)
+		e.origCoef, e.fbDocs = frac(o.Mixture.OrigWeight, prf.DefaultOrigWeight), docs(o.Mixture.FeedbackDocs)
+	case "rocchio":
+		e.model, err = prf.NewRocchio(o.Rocchio)
+		e.origCoef, e.fbDocs = frac(o.Rocchio.Alpha, prf.DefaultAlpha), docs(o.Rocchio.FeedbackDocs)
+	}
+	if err != nil {
+		return fmt.Errorf("suggest: %w", err)
+	}
+	return nil
+}
