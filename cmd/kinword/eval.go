@@ -14,6 +14,7 @@ import (
 	"kinword/internal/eval"
 	"kinword/internal/index"
 	"kinword/internal/progress"
+	"kinword/internal/suggest"
 	"kinword/internal/text"
 )
 
@@ -28,7 +29,7 @@ func runEval(ctx context.Context, e *env, args []string) error {
 	runFile := fs.String("run", "", "also write a TREC run file (qid Q0 docid rank score tag) here")
 	perTopic := fs.Bool("per-topic", false, "print the per-topic table too")
 	markdown := fs.Bool("markdown", false, "print Markdown tables instead of plain text")
-	methods := fs.String("methods", "bm25,rm3,mixture,rocchio", "comma-separated methods: bm25, rm3, mixture, rocchio (feedback methods get 2-fold cross-validated parameters)")
+	methods := fs.String("methods", "bm25,rm3,mixture,rocchio,kinword", "comma-separated methods: bm25, rm3, mixture, rocchio, kinword (Kinword's default: suggestion engine's automatic expansion; feedback methods get 2-fold cross-validated parameters; kinword also scores suggestions)")
 	seed := fs.Uint64("seed", 1, "seed for the cross-validation split and the randomization test")
 	if _, err := e.parse(fs, c, args); err != nil {
 		return err
@@ -105,12 +106,31 @@ func runEval(ctx context.Context, e *env, args []string) error {
 		return err
 	}
 	chosen := map[string][]string{}
+	var quality *suggestionQuality
+	var simulated *simulatedSearcher
 	for _, m := range want {
 		if m == "bm25" {
 			continue
 		}
-		o, err := set.crossValidate(ctx, m, feedbackGrid(m), *seed)
-		if err != nil {
+		var o cvOutcome
+		if m == "kinword" {
+			tbl, err := mineForEval(ctx, ix, tmp)
+			if err != nil {
+				return err
+			}
+			if o, err = set.crossValidateKinword(ctx, tbl, *seed); err != nil {
+				return err
+			}
+			eng, err := suggest.New(tbl, suggest.Options{})
+			if err != nil {
+				return err
+			}
+			qq, ss, err := set.evalSuggestions(ctx, eng, per)
+			if err != nil {
+				return err
+			}
+			quality, simulated = &qq, &ss
+		} else if o, err = set.crossValidate(ctx, m, feedbackGrid(m), *seed); err != nil {
 			return err
 		}
 		chosen[m] = o.Chosen
@@ -151,6 +171,10 @@ func runEval(ctx context.Context, e *env, args []string) error {
 		}
 		obj["no_relevant_in_top_10"] = misses
 		obj["parameters"] = chosen
+		if quality != nil {
+			obj["suggestions"] = quality
+			obj["simulated"] = simulated
+		}
 		return e.printJSON(obj)
 	}
 	fmt.Fprintf(e.stdout, "collection %s: %d documents, %d judged topics, BM25 k1 %.2f b %.2f\n\n", col.Name, n, len(col.Topics), e.cfg.Index.BM25K1, e.cfg.Index.BM25B)
@@ -166,6 +190,12 @@ func runEval(ctx context.Context, e *env, args []string) error {
 		if c := chosen[m]; len(c) > 0 {
 			fmt.Fprintf(e.stdout, "%s parameters (2-fold cross-validation): %s\n", m, strings.Join(c, "; "))
 		}
+	}
+	if quality != nil {
+		fmt.Fprintf(e.stdout, "suggestions (top 5, %d offered over %d topics): good %.2f, neutral %.2f, bad %.2f (AP change of +/-%.3f on adding one)\n",
+			quality.Suggestions, quality.Topics, quality.Good, quality.Neutral, quality.Bad, qualityDelta)
+		fmt.Fprintf(e.stdout, "simulated searcher MAP: best of 5 %.4f, best pair %.4f, first %.4f, random one %.4f (BM25 %.4f)\n",
+			simulated.BestOf5, simulated.BestPairOf5, simulated.FirstOf5, simulated.RandomOf5, rep.Runs[0].MAP)
 	}
 	for _, m := range misses {
 		fmt.Fprintf(e.stdout, "%s topics: %d of %d have no relevant document in the top 10, %d none of their best-graded ones\n", m.Kind, m.Missed, m.Topics, m.MissedBest)

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"fmt"
 
 	"kinword/internal/eval"
 )
@@ -29,25 +28,7 @@ func (s *evalSet) crossValidate(ctx context.Context, method string, grid []feedb
 		}
 		all[i] = per
 	}
-	judged := judgedTopics(s)
-	res, err := eval.CrossValidate(judged, 2, seed, len(grid), func(c int, topics []string) (map[string]float64, error) {
-		out := map[string]float64{}
-		for _, t := range topics {
-			out[t] = all[c][t].MAP
-		}
-		return out, nil
-	})
-	if err != nil {
-		return cvOutcome{}, err
-	}
-	o := cvOutcome{PerTopic: map[string]eval.Measures{}}
-	for f, topics := range res.Folds {
-		for _, t := range topics {
-			o.PerTopic[t] = all[res.Chosen[f]][t]
-		}
-		o.Chosen = append(o.Chosen, fmt.Sprintf("fold %d: %s", f+1, grid[res.Chosen[f]].String(method)))
-	}
-	return o, nil
+	return s.pick(all, grid, method, seed)
 }
 
 // judgedTopics lists the topics with at least one relevant document.

@@ -92,7 +92,7 @@ func countMisses(kind string, sub map[string]eval.Measures, runs map[string][]ev
 }
 
 // evalMethods are the methods eval knows, in report order.
-var evalMethods = []string{"bm25", "rm3", "mixture", "rocchio"}
+var evalMethods = []string{"bm25", "rm3", "mixture", "rocchio", "kinword"}
 
 func parseMethods(s string) ([]string, error) {
 	seen := map[string]bool{}

@@ -1,0 +1,188 @@
+package main
+
+import (
+	"context"
+	"fmt"
+
+	"kinword/internal/access"
+	"kinword/internal/assoc"
+	"kinword/internal/eval"
+	"kinword/internal/index"
+	"kinword/internal/prf"
+	"kinword/internal/suggest"
+)
+
+// qualityDelta is the AP change that makes a suggestion good or bad: the
+// definition of Cao, Nie, Gao & Robertson (SIGIR 2008), +/-0.005.
+const qualityDelta = 0.005
+
+// suggestionQuality holds the shares of good, neutral and bad suggestions
+// among the top five, over all judged topics.
+type suggestionQuality struct {
+	Good        float64 `json:"good"`
+	Neutral     float64 `json:"neutral"`
+	Bad         float64 `json:"bad"`
+	Suggestions int     `json:"suggestions"`
+	Topics      int     `json:"topics"`
+}
+
+// simulatedSearcher is MAP for a searcher shown the top five who accepts
+// the single best one, the best pair, the first one, or one at random
+// (the expected value over the five).
+type simulatedSearcher struct {
+	BestOf5     float64 `json:"best_of_5"`
+	BestPairOf5 float64 `json:"best_pair_of_5"`
+	FirstOf5    float64 `json:"first_of_5"`
+	RandomOf5   float64 `json:"random_of_5"`
+}
+
+// engineExpander is Kinword's automatic mode: the suggestion engine's
+// AutoExpand over the first-pass top results.
+func engineExpander(v *index.View, eng *suggest.Engine) expander {
+	return func(q []index.QueryTerm, first index.Result) []index.QueryTerm {
+		x := eng.AutoExpand(v, suggest.Request{Query: toSuggestQuery(q), Viewer: v.Viewer(), Feedback: toHits(first, 50)})
+		if len(x) == 0 {
+			return nil
+		}
+		out := make([]index.QueryTerm, len(x))
+		for i, t := range x {
+			out[i] = index.QueryTerm{Key: t.Key, Weight: t.Weight}
+		}
+		return out
+	}
+}
+
+// mineForEval mines an association table from the evaluation index.
+func mineForEval(ctx context.Context, ix *index.Index, tmp string) (*assoc.Table, error) {
+	corpus := indexCorpus{all: ix.View(access.Viewer{Groups: ix.Groups()}), open: ix.View(access.Anonymous)}
+	return assoc.Mine(ctx, corpus, assoc.Options{TempDir: tmp})
+}
+
+// engineFor builds an engine for one grid configuration.
+func engineFor(tbl *assoc.Table, c feedbackConfig) (*suggest.Engine, error) {
+	return suggest.New(tbl, suggest.Options{Model: "rm3", AutoTerms: c.Terms,
+		RM3: prf.RM3Options{FeedbackDocs: c.Docs, FeedbackTerms: max(c.Terms, 50), OrigWeight: c.Orig, Mu: c.Alt}})
+}
+
+// crossValidateKinword is crossValidate for Kinword's own automatic mode.
+func (s *evalSet) crossValidateKinword(ctx context.Context, tbl *assoc.Table, seed uint64) (cvOutcome, error) {
+	grid := feedbackGrid("rm3")
+	all := make([]map[string]eval.Measures, len(grid))
+	for i, c := range grid {
+		eng, err := engineFor(tbl, c)
+		if err != nil {
+			return cvOutcome{}, err
+		}
+		per, _, err := s.run(ctx, engineExpander(s.view, eng))
+		if err != nil {
+			return cvOutcome{}, err
+		}
+		all[i] = per
+	}
+	return s.pick(all, grid, "rm3", seed)
+}
+
+// pick runs 2-fold cross-validation over precomputed per-configuration
+// results.
+func (s *evalSet) pick(all []map[string]eval.Measures, grid []feedbackConfig, method string, seed uint64) (cvOutcome, error) {
+	res, err := eval.CrossValidate(judgedTopics(s), 2, seed, len(grid), func(c int, topics []string) (map[string]float64, error) {
+		out := map[string]float64{}
+		for _, t := range topics {
+			out[t] = all[c][t].MAP
+		}
+		return out, nil
+	})
+	if err != nil {
+		return cvOutcome{}, err
+	}
+	o := cvOutcome{PerTopic: map[string]eval.Measures{}}
+	for f, topics := range res.Folds {
+		for _, t := range topics {
+			o.PerTopic[t] = all[res.Chosen[f]][t]
+		}
+		o.Chosen = append(o.Chosen, fmt.Sprintf("fold %d: %s", f+1, grid[res.Chosen[f]].String(method)))
+	}
+	return o, nil
+}
+
+// evalSuggestions offers the top five suggestions per topic and measures
+// each by adding it to the query at the accepted-term weight.
+func (s *evalSet) evalSuggestions(ctx context.Context, eng *suggest.Engine, base map[string]eval.Measures) (suggestionQuality, simulatedSearcher, error) {
+	var q suggestionQuality
+	var sim simulatedSearcher
+	good, bad, n := 0, 0, 0
+	for _, qid := range judgedTopics(s) {
+		q0, ok := s.queries[qid]
+		baseAP := base[qid].MAP
+		q.Topics++
+		if !ok {
+			sim.BestOf5, sim.BestPairOf5, sim.FirstOf5, sim.RandomOf5 = sim.BestOf5+baseAP, sim.BestPairOf5+baseAP, sim.FirstOf5+baseAP, sim.RandomOf5+baseAP
+			continue
+		}
+		sq := toSuggestQuery(q0)
+		sugs := eng.Suggest(s.view, suggest.Request{Query: sq, Viewer: s.view.Viewer(), Feedback: toHits(s.first[qid], 10), K: 5})
+		ap := func(keys ...string) (float64, error) {
+			x := suggest.Expand(sq, keys, 0)
+			iq := make([]index.QueryTerm, len(x))
+			for i, t := range x {
+				iq[i] = index.QueryTerm{Key: t.Key, Weight: t.Weight}
+			}
+			res, err := s.view.Search(ctx, iq, s.bm25, evalDepth)
+			if err != nil {
+				return 0, err
+			}
+			ids := make([]string, len(res.Hits))
+			for i, h := range res.Hits {
+				ids[i] = h.ID
+			}
+			return eval.AveragePrecision(ids, s.qrels[qid]), nil
+		}
+		var aps []float64
+		for _, sg := range sugs {
+			a, err := ap(sg.Term)
+			if err != nil {
+				return q, sim, err
+			}
+			aps = append(aps, a)
+			n++
+			switch d := a - baseAP; {
+			case d >= qualityDelta:
+				good++
+			case d <= -qualityDelta:
+				bad++
+			}
+		}
+		best, pair, first, mean := baseAP, baseAP, baseAP, baseAP
+		if len(aps) > 0 {
+			first, mean, best = aps[0], 0, aps[0]
+			for _, a := range aps {
+				best = max(best, a)
+				mean += a / float64(len(aps))
+			}
+			pair = best
+			for i := range sugs {
+				for j := i + 1; j < len(sugs); j++ {
+					a, err := ap(sugs[i].Term, sugs[j].Term)
+					if err != nil {
+						return q, sim, err
+					}
+					pair = max(pair, a)
+				}
+			}
+		}
+		sim.BestOf5 += best
+		sim.BestPairOf5 += pair
+		sim.FirstOf5 += first
+		sim.RandomOf5 += mean
+	}
+	if n > 0 {
+		q.Good, q.Bad = float64(good)/float64(n), float64(bad)/float64(n)
+		q.Neutral = 1 - q.Good - q.Bad
+	}
+	q.Suggestions = n
+	if q.Topics > 0 {
+		t := float64(q.Topics)
+		sim.BestOf5, sim.BestPairOf5, sim.FirstOf5, sim.RandomOf5 = sim.BestOf5/t, sim.BestPairOf5/t, sim.FirstOf5/t, sim.RandomOf5/t
+	}
+	return q, sim, nil
+}
