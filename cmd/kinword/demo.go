@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 
 	"kinword/internal/access"
+	"kinword/internal/assoc"
 	"kinword/internal/index"
 )
 
@@ -29,6 +30,8 @@ var demoSearches = []struct {
 func runDemo(ctx context.Context, e *env, args []string) error {
 	fs, c := newFlags("demo", e.stderr)
 	corpus := fs.String("corpus", filepath.Join("testdata", "tarnwick"), "demo corpus folder (with docs/ inside)")
+	serve := fs.Bool("serve", false, "after ingesting and mining, serve the search page in demo mode")
+	addr := fs.String("addr", "", "listen address with --serve (default server.addr, 127.0.0.1:7410)")
 	if _, err := e.parse(fs, c, args); err != nil {
 		return err
 	}
@@ -46,6 +49,9 @@ func runDemo(ctx context.Context, e *env, args []string) error {
 	defer ix.Close()
 	sum, err := syncPaths(ctx, e, ix, []string{docs})
 	if err != nil {
+		return err
+	}
+	if err := mineDemo(ctx, e, ix); err != nil {
 		return err
 	}
 	fmt.Fprintf(e.stdout, "Tarnwick Water & Power demo intranet (invented organisation, demo data only)\n")
@@ -73,5 +79,19 @@ func runDemo(ctx context.Context, e *env, args []string) error {
 	fmt.Fprintf(e.stdout, "\nnext: kinword search --data %s \"annual leave\" --viewer dept=people-culture\n", e.dataDir)
 	fmt.Fprintf(e.stdout, "      kinword eval --collection %s\n", *corpus)
 	fmt.Fprintln(e.stdout, "Suggestions are aids to search; safety procedures must be checked in the controlled copy.")
-	return nil
+	if !*serve {
+		fmt.Fprintln(e.stdout, "      kinword demo --serve   (the search page, with department personas)")
+		return nil
+	}
+	ix.Close()
+	return e.serve(ctx, *addr, true)
+}
+
+// mineDemo mines the demo index into the data folder's table.
+func mineDemo(ctx context.Context, e *env, ix *index.Index) error {
+	tbl, err := assoc.Mine(ctx, indexCorpus{all: ix.View(access.Viewer{Groups: ix.Groups()}), open: ix.View(access.Anonymous)}, assoc.Options{TempDir: e.dataDir})
+	if err != nil {
+		return err
+	}
+	return tbl.Write(e.tableFile())
 }

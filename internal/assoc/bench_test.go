@@ -2,6 +2,7 @@ package assoc
 
 import (
 	"context"
+	"fmt"
 	"os"
 	"path/filepath"
 	"sync"
@@ -26,8 +27,32 @@ func zipfCorpus() *MemCorpus {
 	return benchCorpus
 }
 
-func benchMine(b *testing.B, opts Options) {
-	c := zipfCorpus()
+func benchMine(b *testing.B, opts Options) { benchMineOn(b, zipfCorpus(), opts) }
+
+var (
+	benchGroupsOnce   sync.Once
+	benchGroupsCorpus *MemCorpus
+)
+
+// zipfGroupsCorpus is the benchmark corpus with every tenth document
+// restricted to one of four access groups (10% restricted), so Mine builds
+// five scopes.
+func zipfGroupsCorpus() *MemCorpus {
+	benchGroupsOnce.Do(func() {
+		spec := zipfSpec(10000)
+		spec.groups = func(i int) []string {
+			if i%10 != 0 {
+				return nil
+			}
+			return []string{fmt.Sprintf("group%d", i/10%4)}
+		}
+		benchGroupsCorpus = synthCorpus(spec)
+	})
+	return benchGroupsCorpus
+}
+
+func benchMineOn(b *testing.B, c *MemCorpus, opts Options) {
+	b.ReportAllocs()
 	b.ResetTimer()
 	var st mineStats
 	start := time.Now()
@@ -48,6 +73,10 @@ func benchMine(b *testing.B, opts Options) {
 // counting, ranking). tokens/s counts the tokens the pair pass reads;
 // pairs/s the pair increments (passage pairs plus window pairs).
 func BenchmarkMine(b *testing.B) { benchMine(b, Options{}) }
+
+// BenchmarkMineGroups mines the corpus with four restricted groups: the
+// open documents are counted once and reused by every group scope.
+func BenchmarkMineGroups(b *testing.B) { benchMineOn(b, zipfGroupsCorpus(), Options{}) }
 
 // BenchmarkMineNoPhrases isolates counting from phrase detection.
 func BenchmarkMineNoPhrases(b *testing.B) { benchMine(b, Options{MinPhraseCount: -1}) }

@@ -13,9 +13,14 @@ type vocab struct {
 	df, tf []uint32 // documents and occurrences, parallel to ids
 }
 
-// countVocab computes term and document frequencies of one scope over the
-// phrase-rewritten tokens.
-func (m *miner) countVocab(ctx context.Context, scope int, ps *phraseSet, size int, pr *progress) (vocab, error) {
+// freqs are one part's document and term frequencies, indexed by corpus or
+// phrase ID.
+type freqs struct{ df, tf []uint32 }
+
+// countFreqs computes term and document frequencies of part (the open
+// documents or a group's own documents, see scan.own) over the tokens
+// rewritten by ps, and records phrase surfaces under that part.
+func (m *miner) countFreqs(ctx context.Context, part int, ps *phraseSet, size int, pr *progress) (freqs, error) {
 	df := make([]uint32, size)
 	tf := make([]uint32, size)
 	seen := make([]int32, size)
@@ -26,15 +31,15 @@ func (m *miner) countVocab(ctx context.Context, scope int, ps *phraseSet, size i
 	var buf []uint32
 	var gap, gbuf []bool
 	sf, hasSurf := m.c.(Surfacer)
-	for n, di := range m.sc.docs[scope] {
+	for n, di := range m.sc.own[part] {
 		if n&255 == 0 {
 			if err := ctx.Err(); err != nil {
-				return vocab{}, fmt.Errorf("assoc: vocabulary: %w", err)
+				return freqs{}, fmt.Errorf("assoc: vocabulary: %w", err)
 			}
 		}
 		d := m.c.Doc(int(di))
 		if err := m.checkTokens(int(di), d.Tokens); err != nil {
-			return vocab{}, err
+			return freqs{}, err
 		}
 		paras = paragraphs(paras, len(d.Tokens), d.Breaks)
 		gap = gapMask(gap, len(d.Tokens), d.Gaps)
@@ -42,7 +47,7 @@ func (m *miner) countVocab(ctx context.Context, scope int, ps *phraseSet, size i
 			a, b := paras[i], paras[i+1]
 			buf, gbuf = ps.replace(buf[:0], d.Tokens[a:b], gap[a:b], gbuf[:0])
 			if hasSurf {
-				m.countSurfaces(scope, sf, sf.DocSurfaces(int(di)), buf, int(a))
+				m.countSurfaces(part, sf, sf.DocSurfaces(int(di)), buf, int(a))
 			}
 			for _, t := range buf {
 				tf[t]++
@@ -54,15 +59,26 @@ func (m *miner) countVocab(ctx context.Context, scope int, ps *phraseSet, size i
 		}
 		pr.add(1)
 	}
+	return freqs{df, tf}, nil
+}
+
+// vocabOf returns the terms of base plus own (own nil: base alone) whose
+// summed document frequency reaches MinDF.
+func (m *miner) vocabOf(base freqs, own *freqs) vocab {
 	var v vocab
-	for id, n := range df {
+	for id, n := range base.df {
+		tf := base.tf[id]
+		if own != nil {
+			n += own.df[id]
+			tf += own.tf[id]
+		}
 		if int(n) >= m.o.MinDF {
 			v.ids = append(v.ids, uint32(id))
 			v.df = append(v.df, n)
-			v.tf = append(v.tf, tf[id])
+			v.tf = append(v.tf, tf)
 		}
 	}
-	return v, nil
+	return v
 }
 
 // pairJob is one document handed to a counting worker: its tokens as table
@@ -151,10 +167,12 @@ func (w *pairWorker) count(j *pairJob) error {
 	return w.cnt.endDoc()
 }
 
-// countPairs counts passage and window co-occurrences of one scope with
-// Options.Workers goroutines, each owning a share of the memory budget.
+// countPairs counts passage and window co-occurrences of one part (see
+// scan.own) with Options.Workers goroutines, each owning a share of budget.
 // localOf maps corpus/phrase IDs to table IDs for the terms counted here.
-func (m *miner) countPairs(ctx context.Context, scope int, ps *phraseSet, localOf []int32, nLocal int, pr *progress) (*pairCounts, error) {
+// Spilled runs are left in the store.
+func (m *miner) countPairs(ctx context.Context, part int, ps *phraseSet, localOf []int32, nLocal int,
+	budget int64, pr *progress) (*pairCounts, error) {
 	ctx, cancel := context.WithCancel(ctx)
 	defer cancel()
 	nw := m.o.Workers
@@ -170,7 +188,7 @@ func (m *miner) countPairs(ctx context.Context, scope int, ps *phraseSet, localO
 		werr    error
 	)
 	for i := range workers {
-		w := &pairWorker{cnt: newCounter(m.o.MemoryBudget/int64(nw), m.store), window: m.o.Window,
+		w := &pairWorker{cnt: newCounter(budget/int64(nw), m.store), window: m.o.Window,
 			udf: make([]uint32, nLocal), stamp: make([]uint32, nLocal), slot: make([]int32, nLocal)}
 		workers[i] = w
 		wg.Add(1)
@@ -187,7 +205,7 @@ func (m *miner) countPairs(ctx context.Context, scope int, ps *phraseSet, localO
 		}()
 	}
 	res := &pairCounts{udf: make([]uint32, nLocal)}
-	perr := m.producePairs(ctx, scope, ps, localOf, work, free, res, pr)
+	perr := m.producePairs(ctx, part, ps, localOf, work, free, res, pr)
 	close(work)
 	wg.Wait()
 	if werr != nil {
@@ -208,15 +226,15 @@ func (m *miner) countPairs(ctx context.Context, scope int, ps *phraseSet, localO
 	return res, nil
 }
 
-// producePairs reads the scope's documents, rewrites phrases, maps tokens
+// producePairs reads the part's documents, rewrites phrases, maps tokens
 // to table IDs, cuts passages and hands documents to the workers.
-func (m *miner) producePairs(ctx context.Context, scope int, ps *phraseSet, localOf []int32,
+func (m *miner) producePairs(ctx context.Context, part int, ps *phraseSet, localOf []int32,
 	work chan<- *pairJob, free <-chan *pairJob, res *pairCounts, pr *progress) error {
 	plen := m.o.PassageLen
 	var paras []int32
 	var buf []uint32
 	var gap, gbuf []bool
-	for _, di := range m.sc.docs[scope] {
+	for _, di := range m.sc.own[part] {
 		var j *pairJob
 		select {
 		case <-ctx.Done():

@@ -3,6 +3,7 @@ package assoc
 import (
 	"context"
 	"fmt"
+	"slices"
 )
 
 // mergeAll k-way merges the store's run files and the in-memory runs,
@@ -10,20 +11,27 @@ import (
 // ascending key order. Run files are consumed (deleted). When there are
 // more than mergeFanIn runs, files are first merged in rounds.
 func mergeAll(ctx context.Context, store *spillStore, mem [][]slot, emit func(entry) error) error {
+	return mergeKeep(ctx, store, nil, mem, emit)
+}
+
+// mergeKeep is mergeAll with extra run files that are read but kept (not
+// deleted and not merged in rounds), so they can be merged again: the open
+// documents' runs, reused by every group scope.
+func mergeKeep(ctx context.Context, store *spillStore, kept []string, mem [][]slot, emit func(entry) error) error {
 	files := store.takeFiles()
-	for len(files)+len(mem) > mergeFanIn && len(files) > 1 {
+	for len(files)+len(kept)+len(mem) > mergeFanIn && len(files) > 1 {
 		k := min(mergeFanIn, len(files))
 		group := files[:k:k]
 		files = files[k:]
 		err := store.writeFile(func(out func(entry) error) error {
-			return mergeRuns(ctx, group, nil, out)
+			return mergeRuns(ctx, group, nil, nil, out)
 		})
 		if err != nil {
 			return err
 		}
 		files = append(files, store.takeFiles()...)
 	}
-	return mergeRuns(ctx, files, mem, emit)
+	return mergeRuns(ctx, files, kept, mem, emit)
 }
 
 type headItem struct {
@@ -31,16 +39,17 @@ type headItem struct {
 	src int
 }
 
-// mergeRuns merges the given files and memory runs in one round.
-func mergeRuns(ctx context.Context, files []string, mem [][]slot, emit func(entry) error) (err error) {
-	readers := make([]runReader, 0, len(files)+len(mem))
+// mergeRuns merges the given files (deleted afterwards), kept files and
+// memory runs in one round.
+func mergeRuns(ctx context.Context, files, kept []string, mem [][]slot, emit func(entry) error) (err error) {
+	readers := make([]runReader, 0, len(files)+len(kept)+len(mem))
 	defer func() {
 		for _, r := range readers {
 			r.close()
 		}
 	}()
-	for _, f := range files {
-		r, err := openFileRun(f)
+	for i, f := range slices.Concat(files, kept) {
+		r, err := openFileRun(f, i < len(files))
 		if err != nil {
 			return err
 		}

@@ -24,8 +24,10 @@ type miner struct {
 // corpus in several passes: a scan (fingerprint, access scopes), phrase
 // detection (bigrams, then trigrams), vocabulary (document frequencies),
 // then pair counting and ranking, scope by scope. Each scope is mined from
-// its own documents only. On cancellation Mine returns promptly with an
-// error wrapping ctx.Err(); spill files are always removed.
+// its own documents only. The open documents, which belong to every scope,
+// are counted once and their counts added to each group's (see base.go and
+// the package documentation). On cancellation Mine returns promptly with
+// an error wrapping ctx.Err(); spill files are always removed.
 func Mine(ctx context.Context, c Corpus, opts Options) (*Table, error) {
 	o := opts.resolved()
 	sc, err := scanCorpus(ctx, c, o.Progress)
@@ -40,14 +42,23 @@ func Mine(ctx context.Context, c Corpus, opts Options) (*Table, error) {
 	}
 	size := sc.nTerms + len(defs)
 	m.defs = defs
-	m.phraseSurf = make([]map[uint32]map[string]uint32, len(sc.scopes))
-	vocabs := make([]vocab, len(sc.scopes))
+	nScopes := len(sc.scopes)
+	m.phraseSurf = make([]map[uint32]map[string]uint32, nScopes)
+	vocabs := make([]vocab, nScopes)
 	pr := newProgress(o.Progress, "vocab", sc.totalDocs())
-	for s := range vocabs {
-		if vocabs[s], err = m.countVocab(ctx, s, sets[s], size, pr); err != nil {
+	open, err := m.countFreqs(ctx, 0, sets[0], size, pr)
+	if err != nil {
+		return nil, err
+	}
+	vocabs[0] = m.vocabOf(open, nil)
+	for s := 1; s < nScopes; s++ {
+		own, err := m.countFreqs(ctx, s, sets[s], size, pr)
+		if err != nil {
 			return nil, err
 		}
+		vocabs[s] = m.vocabOf(open, &own)
 	}
+	open = freqs{}
 	m.phraseDisplays()
 	t, localOf, err := m.dictionary(vocabs, defs, size)
 	if err != nil {
@@ -55,10 +66,24 @@ func Mine(ctx context.Context, c Corpus, opts Options) (*Table, error) {
 	}
 	nLocal := t.numTerms()
 	pr = newProgress(o.Progress, "pairs", sc.totalDocs())
-	rank := newProgress(o.Progress, "rank", len(sc.scopes))
+	rank := newProgress(o.Progress, "rank", nScopes)
+	// The open part counts every term of the dictionary: a term below MinDF
+	// in the open documents may reach it in a group scope. Ranking keeps
+	// only the pairs of terms counted in the scope being ranked.
+	pcOpen, err := m.countPairs(ctx, 0, sets[0], localOf, nLocal, o.MemoryBudget, pr)
+	if err != nil {
+		return nil, err
+	}
+	m.stats.incr += pcOpen.incr
+	m.stats.toks += pcOpen.toks
+	base, err := m.keepBase(ctx, pcOpen.mem, nScopes > 1)
+	if err != nil {
+		return nil, err
+	}
+	pcOpen.mem = nil
 	scopeLocal := make([]int32, size)
 	for s, v := range vocabs {
-		st := &scopeTable{name: sc.scopes[s], docs: uint32(len(sc.docs[s])),
+		st := &scopeTable{name: sc.scopes[s], docs: uint32(sc.scopeDocs(s)),
 			df: make([]uint32, nLocal), tf: make([]uint32, nLocal)}
 		for i := range scopeLocal {
 			scopeLocal[i] = -1
@@ -68,18 +93,32 @@ func Mine(ctx context.Context, c Corpus, opts Options) (*Table, error) {
 			scopeLocal[id] = l
 			st.df[l], st.tf[l] = v.df[i], v.tf[i]
 		}
-		pc, err := m.countPairs(ctx, s, sets[s], scopeLocal, nLocal, pr)
-		if err != nil {
-			return nil, err
+		udf := make([]uint32, nLocal)
+		units := pcOpen.units
+		var own [][]slot
+		if s > 0 {
+			pc, err := m.countPairs(ctx, s, sets[s], scopeLocal, nLocal, m.budget(base), pr)
+			if err != nil {
+				return nil, err
+			}
+			m.stats.incr += pc.incr
+			m.stats.toks += pc.toks
+			units += pc.units
+			own = pc.mem
+			copy(udf, pc.udf)
 		}
-		m.stats.incr += pc.incr
-		m.stats.toks += pc.toks
-		if err := m.rankScope(ctx, pc, st); err != nil {
+		for l, n := range pcOpen.udf {
+			if st.df[l] > 0 {
+				udf[l] += n
+			}
+		}
+		if err := m.rankScope(ctx, base, own, udf, units, st); err != nil {
 			return nil, err
 		}
 		t.scopes = append(t.scopes, st)
 		rank.add(1)
 	}
+	base.release()
 	t.stats = m.stats
 	return t, nil
 }
@@ -142,9 +181,11 @@ func (m *miner) dictionary(vocabs []vocab, defs []phraseDef, size int) (*Table, 
 }
 
 // phraseDisplays sets each phrase's display to its commonest written form,
-// taken from the open scope when the phrase occurs there, else from the
-// first scope that has it, so an open display never comes from restricted
-// text.
+// taken from the open documents when the phrase occurs there, else from the
+// own documents of the first group scope that has it, so an open display
+// never comes from restricted text. (Open documents are rewritten with the
+// open phrases only, so a phrase that is not in them has no open forms in
+// any scope.)
 func (m *miner) phraseDisplays() {
 	for i := range m.defs {
 		id := uint32(m.sc.nTerms + i)
@@ -165,8 +206,9 @@ func (m *miner) phraseDisplays() {
 	}
 }
 
-// countSurfaces records how the phrases in one rewritten paragraph were
-// written. buf is the rewritten paragraph, which began at token a.
+// countSurfaces records how the phrases in one rewritten paragraph of a
+// part (see scan.own) were written. buf is the rewritten paragraph, which
+// began at token a.
 func (m *miner) countSurfaces(scope int, sf Surfacer, surf []uint32, buf []uint32, a int) {
 	if m.phraseSurf[scope] == nil {
 		m.phraseSurf[scope] = map[uint32]map[string]uint32{}

@@ -83,20 +83,26 @@ func (p *phraseSet) replace(dst, toks []uint32, gap, gdst []bool) ([]uint32, []b
 	return dst, gdst
 }
 
-// adjacency counts adjacent token pairs (x, y) of one scope, x and y below
-// size, over the documents' paragraphs rewritten by ps; keep selects the
-// pairs that are candidates. It returns the pairs that pass the phrase
-// thresholds, sorted by key.
-func (m *miner) adjacency(ctx context.Context, scope int, ps *phraseSet, size int,
-	keep func(x, y uint32) bool, pr *progress) ([]uint64, error) {
-	first := make([]uint32, size)
-	second := make([]uint32, size)
-	var nAdj int64
-	cnt := newCounter(m.o.MemoryBudget, m.store)
+// adjPart is the adjacency counts of one part (the open documents, or a
+// group's own documents): marginals of first and second positions, the
+// number of adjacent pairs, and the candidate pairs' sorted runs.
+type adjPart struct {
+	first, second []uint32
+	n             int64
+	runs          [][]slot // in-memory runs; spilled runs are in the store
+}
+
+// adjacency counts adjacent token pairs (x, y), x and y below size, over
+// the paragraphs of docs rewritten by ps; keep selects the pairs that are
+// candidates. Spilled runs are left in the store.
+func (m *miner) adjacency(ctx context.Context, docs []int32, ps *phraseSet, size int,
+	keep func(x, y uint32) bool, budget int64, pr *progress) (*adjPart, error) {
+	a := &adjPart{first: make([]uint32, size), second: make([]uint32, size)}
+	cnt := newCounter(budget, m.store)
 	var paras []int32
 	var buf []uint32
 	var gap, gbuf []bool
-	for n, di := range m.sc.docs[scope] {
+	for n, di := range docs {
 		if n&255 == 0 {
 			if err := ctx.Err(); err != nil {
 				return nil, fmt.Errorf("assoc: phrases: %w", err)
@@ -109,16 +115,16 @@ func (m *miner) adjacency(ctx context.Context, scope int, ps *phraseSet, size in
 		paras = paragraphs(paras, len(d.Tokens), d.Breaks)
 		gap = gapMask(gap, len(d.Tokens), d.Gaps)
 		for i := 0; i < len(paras); i += 2 {
-			a, b := paras[i], paras[i+1]
-			buf, gbuf = ps.replace(buf[:0], d.Tokens[a:b], gap[a:b], gbuf[:0])
+			lo, hi := paras[i], paras[i+1]
+			buf, gbuf = ps.replace(buf[:0], d.Tokens[lo:hi], gap[lo:hi], gbuf[:0])
 			for j := 0; j+1 < len(buf); j++ {
 				if gbuf[j+1] {
 					continue // removed words between: not adjacent
 				}
 				x, y := buf[j], buf[j+1]
-				first[x]++
-				second[y]++
-				nAdj++
+				a.first[x]++
+				a.second[y]++
+				a.n++
 				if keep(x, y) {
 					cnt.add(uint64(x)<<32|uint64(y), uint32(di), 1, 0)
 				}
@@ -130,9 +136,28 @@ func (m *miner) adjacency(ctx context.Context, scope int, ps *phraseSet, size in
 		pr.add(1)
 	}
 	m.stats.spills += cnt.spills
+	a.runs = [][]slot{cnt.finish()}
+	return a, nil
+}
+
+// selectPhrases returns, sorted by key, the candidate pairs whose summed
+// adjacency counts over the base part and own (nil: the base alone) pass
+// the phrase thresholds. The store's run files are own's and are consumed.
+func (m *miner) selectPhrases(ctx context.Context, base *adjPart, baseRuns *baseRuns, own *adjPart) ([]uint64, error) {
+	first, second, nAdj := base.first, base.second, base.n
+	var ownRuns [][]slot
+	if own != nil {
+		first, second = slices.Clone(first), slices.Clone(second)
+		for i := range own.first {
+			first[i] += own.first[i]
+			second[i] += own.second[i]
+		}
+		nAdj += own.n
+		ownRuns = own.runs
+	}
 	var kept []uint64
 	minCount, minDocs := uint32(m.o.MinPhraseCount), uint32(m.o.MinDF)
-	err := mergeAll(ctx, m.store, [][]slot{cnt.finish()}, func(e entry) error {
+	err := baseRuns.merge(ctx, m.store, ownRuns, func(e entry) error {
 		if e.u < minCount || e.d < minDocs {
 			return nil
 		}
@@ -144,6 +169,13 @@ func (m *miner) adjacency(ctx context.Context, scope int, ps *phraseSet, size in
 		return nil
 	})
 	return kept, err
+}
+
+// unionKeys returns the sorted union of two sorted key lists.
+func unionKeys(a, b []uint64) []uint64 {
+	out := slices.Concat(a, b)
+	slices.Sort(out)
+	return slices.Compact(out)
 }
 
 func (m *miner) checkTokens(doc int, toks []uint32) error {
@@ -158,9 +190,20 @@ func (m *miner) checkTokens(doc int, toks []uint32) error {
 // detectPhrases finds each scope's bigrams, then trigrams made of a kept
 // bigram and the next token, and returns the per-scope phrase sets with
 // table-wide phrase IDs nTerms, nTerms+1, ... in key order.
+//
+// The open scope's phrases are detected on the open documents' adjacency
+// counts. A group scope's phrases are the open scope's plus those detected
+// on the adjacency counts over the open documents and the group's own
+// documents together (summed). In every scope the open documents are
+// rewritten with the open scope's phrases only, so their counts are the
+// same everywhere and are counted once; a group's own documents are
+// rewritten with the group's phrases. Trigram candidates are therefore
+// counted over open documents rewritten with the open bigrams plus the
+// group's documents rewritten with the group's bigrams.
 func (m *miner) detectPhrases(ctx context.Context) ([]*phraseSet, []phraseDef, error) {
 	nTerms := m.sc.nTerms
-	sets := make([]*phraseSet, len(m.sc.scopes))
+	nScopes := len(m.sc.scopes)
+	sets := make([]*phraseSet, nScopes)
 	if m.o.MinPhraseCount < 0 {
 		for i := range sets {
 			sets[i] = newPhraseSet(nTerms)
@@ -168,32 +211,84 @@ func (m *miner) detectPhrases(ctx context.Context) ([]*phraseSet, []phraseDef, e
 		return sets, nil, nil
 	}
 	total := m.sc.totalDocs()
-	bigrams := make([][]uint64, len(sets))
+	reuse := nScopes > 1
+	all := func(x, y uint32) bool { return true }
+
+	// Bigrams.
+	bigrams := make([][]uint64, nScopes)
 	pr := newProgress(m.o.Progress, "bigrams", total)
-	for s := range sets {
-		kept, err := m.adjacency(ctx, s, newPhraseSet(nTerms), nTerms, func(x, y uint32) bool { return true }, pr)
+	open, err := m.adjacency(ctx, m.sc.own[0], newPhraseSet(nTerms), nTerms, all, m.o.MemoryBudget, pr)
+	if err != nil {
+		return nil, nil, err
+	}
+	base, err := m.keepBase(ctx, open.runs, reuse)
+	if err != nil {
+		return nil, nil, err
+	}
+	if bigrams[0], err = m.selectPhrases(ctx, open, base, nil); err != nil {
+		return nil, nil, err
+	}
+	for s := 1; s < nScopes; s++ {
+		own, err := m.adjacency(ctx, m.sc.own[s], newPhraseSet(nTerms), nTerms, all, m.budget(base), pr)
 		if err != nil {
 			return nil, nil, err
 		}
-		bigrams[s] = kept
+		kept, err := m.selectPhrases(ctx, open, base, own)
+		if err != nil {
+			return nil, nil, err
+		}
+		bigrams[s] = unionKeys(bigrams[0], kept)
 	}
-	trigrams := make([][][3]uint32, len(sets))
-	pr = newProgress(m.o.Progress, "trigrams", total)
-	for s := range sets {
+	base.release()
+
+	// Trigrams: candidates are (bigram, next token), with the bigrams
+	// numbered nTerms+i by their index in the union of all scopes' bigrams,
+	// so that the parts' candidate keys agree.
+	var union []uint64
+	for _, b := range bigrams {
+		union = unionKeys(union, b)
+	}
+	tmpSet := func(s int) *phraseSet {
 		ps := newPhraseSet(nTerms)
-		for i, k := range bigrams[s] {
+		for _, k := range bigrams[s] {
+			i, _ := slices.BinarySearch(union, k)
 			ps.addBigram(uint32(k>>32), uint32(k), uint32(nTerms+i))
 		}
-		isBigram := func(x, y uint32) bool { return int(x) >= nTerms && int(y) < nTerms }
-		kept, err := m.adjacency(ctx, s, ps, nTerms+len(bigrams[s]), isBigram, pr)
+		return ps
+	}
+	size := nTerms + len(union)
+	isBigram := func(x, y uint32) bool { return int(x) >= nTerms && int(y) < nTerms }
+	trigramKeys := make([][]uint64, nScopes)
+	pr = newProgress(m.o.Progress, "trigrams", total)
+	if open, err = m.adjacency(ctx, m.sc.own[0], tmpSet(0), size, isBigram, m.o.MemoryBudget, pr); err != nil {
+		return nil, nil, err
+	}
+	if base, err = m.keepBase(ctx, open.runs, reuse); err != nil {
+		return nil, nil, err
+	}
+	if trigramKeys[0], err = m.selectPhrases(ctx, open, base, nil); err != nil {
+		return nil, nil, err
+	}
+	for s := 1; s < nScopes; s++ {
+		own, err := m.adjacency(ctx, m.sc.own[s], tmpSet(s), size, isBigram, m.budget(base), pr)
 		if err != nil {
 			return nil, nil, err
 		}
-		for _, k := range kept {
-			bg := bigrams[s][int(k>>32)-nTerms]
+		kept, err := m.selectPhrases(ctx, open, base, own)
+		if err != nil {
+			return nil, nil, err
+		}
+		trigramKeys[s] = unionKeys(trigramKeys[0], kept)
+	}
+	base.release()
+	trigrams := make([][][3]uint32, nScopes)
+	for s, keys := range trigramKeys {
+		for _, k := range keys {
+			bg := union[int(k>>32)-nTerms]
 			trigrams[s] = append(trigrams[s], [3]uint32{uint32(bg >> 32), uint32(bg), uint32(k)})
 		}
 	}
+
 	defs, ids := m.phraseDefs(bigrams, trigrams)
 	for s := range sets {
 		ps := newPhraseSet(nTerms)

@@ -62,21 +62,26 @@ func (t *topK) offer(term uint32, c cand) {
 	}
 }
 
-// rankScope merges the scope's pair counts, keeps pairs with enough
+// rankScope merges the scope's pair counts (the open part's base runs plus
+// the store's files and own, the group's own runs; both empty for the open
+// scope), keeps pairs of terms counted in the scope (st.df > 0) with enough
 // supporting documents whose passage co-occurrence exceeds chance, and
-// builds every term's neighbour list, best first.
-func (m *miner) rankScope(ctx context.Context, pc *pairCounts, st *scopeTable) error {
-	nLocal := len(pc.udf)
+// builds every term's neighbour list, best first. udf and n are the
+// scope's passage frequencies (zero outside the scope) and passages.
+func (m *miner) rankScope(ctx context.Context, base *baseRuns, own [][]slot, udf []uint32, n int64, st *scopeTable) error {
+	nLocal := len(udf)
 	tk := &topK{k: m.o.TopK, heaps: make([][]cand, nLocal)}
 	minSup := uint32(m.o.MinSupportDocs)
-	n := pc.units
 	meas := m.o.Measure
-	err := mergeAll(ctx, m.store, pc.mem, func(e entry) error {
+	err := base.merge(ctx, m.store, own, func(e entry) error {
 		if e.d < minSup {
 			return nil
 		}
 		a, b := uint32(e.key>>32), uint32(e.key)
-		na, nb := int64(pc.udf[a]), int64(pc.udf[b])
+		if st.df[a] == 0 || st.df[b] == 0 { // counted for another scope only
+			return nil
+		}
+		na, nb := int64(udf[a]), int64(udf[b])
 		if int64(e.u)*n <= na*nb { // not above chance
 			return nil
 		}
@@ -91,12 +96,11 @@ func (m *miner) rankScope(ctx context.Context, pc *pairCounts, st *scopeTable) e
 		st.pairs++
 		return nil
 	})
-	pc.mem = nil
 	if err != nil {
 		return err
 	}
 	st.units = uint64(n)
-	st.udf = pc.udf
+	st.udf = udf
 	st.off = make([]uint32, nLocal+1)
 	total := 0
 	for _, h := range tk.heaps {

@@ -21,9 +21,13 @@ type scan struct {
 	fingerprint [32]byte
 	nDocs       int
 	nTerms      int
-	scopes      []string  // scope names, OpenScope first, then groups sorted
-	docs        [][]int32 // per scope: its documents in ascending order
-	spaced      map[string]bool
+	scopes      []string // scope names, OpenScope first, then groups sorted
+	// own holds, per scope, the documents counted for that scope alone, in
+	// ascending order: own[0] the open documents, own[g] (g > 0) the
+	// restricted documents of group g. Scope g is own[0] plus own[g]; the
+	// parts are disjoint, so counts over them add up.
+	own    [][]int32
+	spaced map[string]bool
 }
 
 // scanCorpus fingerprints the corpus, validates token IDs and sorts the
@@ -108,18 +112,16 @@ func scanCorpus(ctx context.Context, c Corpus, progressFn func(string, int, int)
 	for i, g := range s.scopes {
 		scopeOf[g] = i
 	}
-	s.docs = make([][]int32, len(s.scopes))
+	s.own = make([][]int32, len(s.scopes))
 	for i, k := range docSet {
 		switch {
 		case k < 0:
 		case k == 0:
-			for sc := range s.docs {
-				s.docs[sc] = append(s.docs[sc], int32(i))
-			}
+			s.own[0] = append(s.own[0], int32(i))
 		default:
 			for _, g := range setGroups[k] {
 				sc := scopeOf[g]
-				s.docs[sc] = append(s.docs[sc], int32(i))
+				s.own[sc] = append(s.own[sc], int32(i))
 			}
 		}
 	}
@@ -162,12 +164,20 @@ func (w *fpWriter) sum() []byte {
 	return w.h.Sum(nil)
 }
 
-// totalDocs is the number of document visits one pass over every scope
-// makes.
+// totalDocs is the number of document visits one counting pass makes: the
+// open documents once, plus each group's own documents.
 func (s *scan) totalDocs() int {
 	n := 0
-	for _, d := range s.docs {
+	for _, d := range s.own {
 		n += len(d)
 	}
 	return n
+}
+
+// scopeDocs is the number of documents in scope sc.
+func (s *scan) scopeDocs(sc int) int {
+	if sc == 0 {
+		return len(s.own[0])
+	}
+	return len(s.own[0]) + len(s.own[sc])
 }

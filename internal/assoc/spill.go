@@ -97,6 +97,13 @@ func (s *spillStore) writeFile(fill func(emit func(entry) error) error) error {
 	return nil
 }
 
+// hasFiles reports whether run files are waiting to be merged.
+func (s *spillStore) hasFiles() bool {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return len(s.files) > 0
+}
+
 // takeFiles returns and forgets the run files written so far.
 func (s *spillStore) takeFiles() []string {
 	s.mu.Lock()
@@ -140,17 +147,18 @@ func (r *memRun) next() (entry, bool, error) {
 func (r *memRun) close() { r.s = nil }
 
 type fileRun struct {
-	f   *os.File
-	br  *bufio.Reader
-	buf [entryBytes]byte
+	f      *os.File
+	br     *bufio.Reader
+	buf    [entryBytes]byte
+	remove bool // delete the file on close
 }
 
-func openFileRun(path string) (*fileRun, error) {
+func openFileRun(path string, remove bool) (*fileRun, error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, fmt.Errorf("assoc: spill: %w", err)
 	}
-	return &fileRun{f: f, br: bufio.NewReaderSize(f, 1<<16)}, nil
+	return &fileRun{f: f, br: bufio.NewReaderSize(f, 1<<16), remove: remove}, nil
 }
 
 func (r *fileRun) next() (entry, bool, error) {
@@ -166,7 +174,8 @@ func (r *fileRun) next() (entry, bool, error) {
 }
 
 func (r *fileRun) close() {
-	name := r.f.Name()
 	r.f.Close()
-	os.Remove(name)
+	if r.remove {
+		os.Remove(r.f.Name())
+	}
 }

@@ -31,6 +31,26 @@ type Config struct {
 	Index    Index  `toml:"index"`
 	Ingest   Ingest `toml:"ingest"`
 	Search   Search `toml:"search"`
+	Server   Server `toml:"server"`
+}
+
+// Server configures kinword serve.
+type Server struct {
+	// Addr is the listen address; default 127.0.0.1:7410.
+	Addr string `toml:"addr"`
+	// DepartmentHeader, GroupsHeader and SecretHeader name the identity
+	// headers a trusted proxy sets.
+	DepartmentHeader string `toml:"department_header"`
+	GroupsHeader     string `toml:"groups_header"`
+	SecretHeader     string `toml:"secret_header"`
+	// TrustLoopback trusts identity headers from loopback; default false.
+	TrustLoopback bool `toml:"trust_loopback"`
+	// AllowedOrigins may call the API cross-origin (the widget).
+	AllowedOrigins []string `toml:"allowed_origins"`
+	// ShutdownGraceSeconds bounds the drain at shutdown; default 10.
+	ShutdownGraceSeconds int `toml:"shutdown_grace_seconds"`
+	// RefreshSeconds is the suggestion cache lifetime; default 30.
+	RefreshSeconds int `toml:"refresh_seconds"`
 }
 
 // Index configures ranking and bleve writes.
@@ -149,6 +169,20 @@ func (c Config) Validate() error {
 	}
 	if c.Search.MaxQueryTerms < 1 || c.Search.MaxQueryTerms > 1024 {
 		bad("search.max_query_terms", "%d is outside 1..1024", c.Search.MaxQueryTerms)
+	}
+	if strings.TrimSpace(c.Server.Addr) == "" {
+		bad("server.addr", "must not be empty")
+	}
+	for _, o := range c.Server.AllowedOrigins {
+		if !strings.HasPrefix(o, "http://") && !strings.HasPrefix(o, "https://") {
+			bad("server.allowed_origins", "%q must start with http:// or https://", o)
+		}
+	}
+	if c.Server.ShutdownGraceSeconds < 1 || c.Server.ShutdownGraceSeconds > 300 {
+		bad("server.shutdown_grace_seconds", "%d is outside 1..300", c.Server.ShutdownGraceSeconds)
+	}
+	if c.Server.RefreshSeconds < 1 || c.Server.RefreshSeconds > 3600 {
+		bad("server.refresh_seconds", "%d is outside 1..3600", c.Server.RefreshSeconds)
 	}
 	return errors.Join(errs...)
 }

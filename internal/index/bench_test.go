@@ -7,8 +7,12 @@ package index
 //	KINWORD_BENCH_DOCS=100000 go test ./internal/index -run XXX \
 //	    -bench 'Ingest|SearchTop10' -benchtime 1x -count 1 -timeout 60m
 //
-// None of these benchmarks asserts a time: they report docs/s, latency
-// percentiles and ratios for people to judge.
+// Each SearchTop10 leaf makes b.N passes over its 200 queries, so
+// -benchtime 10x gives 2000 latencies per leaf and a steadier p99. None of
+// these benchmarks asserts a time: they report docs/s, latency percentiles
+// and ratios for people to judge. Wall-clock figures move with other work
+// on the machine; the logged load average and the cpu-ms/doc metric help
+// to tell.
 
 import (
 	"context"
@@ -35,7 +39,7 @@ import (
 // commit-s (the final Commit, inside the timer), close-s (outside) and
 // heap-MB, the live heap the open index adds after a full collection, and
 // cpu-ms/doc and cores (process CPU time per document, and over wall time),
-// which other work on the machine hardly changes.
+// which other work on the machine changes less than it changes docs/s.
 func BenchmarkIngest(b *testing.B) {
 	docs := benchCorpus(b)
 	p, err := text.NewPipeline("")
@@ -220,19 +224,26 @@ func bleveFilterSearch(ix *Index) searchFunc {
 type latencies struct{ p50, p99 float64 } // microseconds
 
 // runQueries is the body of one search sub-benchmark: one untimed warm-up
-// pass, then b.N passes over the class's queries, each query timed on its
+// pass (which fails the benchmark if no query finds anything), then b.N passes over the class's queries, each query timed on its
 // own. p50-us and p99-us are nearest-rank percentiles over all
 // b.N x len(queries) latencies; ns/op is the cost of one pass.
 func runQueries(b *testing.B, search searchFunc, v access.Viewer, queries []string) latencies {
 	ctx := context.Background()
+	empty := 0
 	for _, q := range queries {
 		hits, err := search(ctx, v, q)
 		if err != nil {
 			b.Fatal(err)
 		}
 		if len(hits) == 0 {
-			b.Fatalf("query %q found nothing", q)
+			empty++
 		}
+	}
+	switch {
+	case empty == len(queries):
+		b.Fatalf("none of %d queries found anything", len(queries))
+	case empty > 0: // mid-frequency words can be absent from a small corpus
+		b.Logf("%d of %d queries found nothing", empty, len(queries))
 	}
 	lat := make([]float64, 0, b.N*len(queries))
 	b.ResetTimer()
@@ -340,17 +351,4 @@ func describeClass(b *testing.B, ix *Index, v access.Viewer, queries []string, o
 	slices.Sort(dfs)
 	return fmt.Sprintf("N %d, word df min %d median %d max %d, mean top-10 overlap %.1f",
 		w.N(), dfs[0], dfs[len(dfs)/2], dfs[len(dfs)-1], float64(overlap)/float64(len(queries)))
-}
-
-// loadAvg returns the 1-minute load average (Linux), so a log shows whether
-// other work shared the machine during a measurement.
-func loadAvg() string {
-	b, err := os.ReadFile("/proc/loadavg")
-	if err != nil {
-		return "unknown"
-	}
-	if f := strings.Fields(string(b)); len(f) > 0 {
-		return f[0]
-	}
-	return "unknown"
 }

@@ -147,8 +147,8 @@ func heapMB() float64 {
 // processCPU returns the CPU time (user + system, all threads) the process
 // has used, from /proc/self/stat (fields 14 and 15, in USER_HZ ticks of
 // 1/100 s, fixed by the Linux ABI). ok is false where /proc is missing, and
-// the CPU metrics are then not reported. Unlike wall time, CPU time is
-// hardly changed by other processes sharing the machine.
+// the CPU metrics are then not reported. Other processes sharing the
+// machine change CPU time less than they change wall time.
 func processCPU() (d time.Duration, ok bool) {
 	b, err := os.ReadFile("/proc/self/stat")
 	if err != nil {
@@ -296,4 +296,17 @@ func TestPercentileNearestRank(t *testing.T) {
 			}
 		})
 	}
+}
+
+// loadAvg returns the 1-minute load average (Linux), so a log shows whether
+// other work shared the machine during a measurement.
+func loadAvg() string {
+	b, err := os.ReadFile("/proc/loadavg")
+	if err != nil {
+		return "unknown"
+	}
+	if f := strings.Fields(string(b)); len(f) > 0 {
+		return f[0]
+	}
+	return "unknown"
 }

@@ -32,10 +32,11 @@ func (ix *Index) BleveSearch(ctx context.Context, v access.Viewer, words string,
 	mq := query.NewMatchQuery(words)
 	mq.SetField(fieldContent)
 	mq.Analyzer = analyzerName(ix.p.DefaultLanguage())
-	filter := accessQuery(v.Normalize())
-	// The access filter must not add to the score: boost it to zero.
-	filter.(*query.DisjunctionQuery).SetBoost(0)
-	q := query.NewConjunctionQuery([]query.Query{mq, filter})
+	// The access filter must restrict, not score: a boolean query's filter
+	// clause does that (a zero boost on a disjunction is ignored by bleve
+	// v2.6.3, which let group terms raise restricted documents' scores).
+	q := query.NewBooleanQuery([]query.Query{mq}, nil, nil)
+	q.AddFilter(accessQuery(v.Normalize()))
 	req := bleve.NewSearchRequestOptions(q, k, 0, false)
 	res, err := ix.b.SearchInContext(ctx, req)
 	if err != nil {

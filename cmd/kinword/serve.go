@@ -1,0 +1,94 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"os"
+	"os/signal"
+	"syscall"
+	"time"
+
+	"kinword/internal/finder"
+	"kinword/internal/text"
+	"kinword/internal/web"
+)
+
+func init() {
+	register(&command{name: "serve", summary: "serve the search page and the JSON API (search with suggestions, suggestions alone) over the data folder",
+		usage: "[--addr HOST:PORT] [--data DIR]", run: runServe})
+}
+
+// demoPersonas are the departments a demo visitor may search as.
+var demoPersonas = []web.Persona{
+	{Department: "field-operations", Label: "Field Operations"},
+	{Department: "asset-engineering", Label: "Asset Engineering"},
+	{Department: "people-culture", Label: "People & Culture"},
+	{Department: "people-culture", Label: "People & Culture, confidential casework", Groups: []string{"people-confidential"}},
+	{Department: "finance-procurement", Label: "Finance & Procurement"},
+	{Department: "it-service-desk", Label: "IT Service Desk"},
+	{Department: "legal-compliance", Label: "Legal & Compliance"},
+	{Department: "health-safety-environment", Label: "Health, Safety & Environment"},
+	{Department: "customer-care", Label: "Customer Care"},
+}
+
+func runServe(ctx context.Context, e *env, args []string) error {
+	fs, c := newFlags("serve", e.stderr)
+	addr := fs.String("addr", "", "listen address (default server.addr from the config, 127.0.0.1:7410)")
+	if _, err := e.parse(fs, c, args); err != nil {
+		return err
+	}
+	return e.serve(ctx, *addr, false)
+}
+
+// serve opens the finder on the data folder and serves until ctx ends.
+// SIGHUP reloads the association table.
+func (e *env) serve(ctx context.Context, addr string, demo bool) error {
+	if addr == "" {
+		addr = e.cfg.Server.Addr
+	}
+	p, err := text.NewPipeline(e.cfg.Language)
+	if err != nil {
+		return err
+	}
+	start := time.Now()
+	f, err := finder.Open(ctx, e.dataDir, p, finder.Options{
+		BM25: e.bm25(), Results: e.cfg.Search.Results, SnippetTokens: e.cfg.Search.SnippetTokens,
+		Limits: e.queryLimits(), CacheTTL: time.Duration(e.cfg.Server.RefreshSeconds) * time.Second,
+	})
+	if err != nil {
+		return err
+	}
+	defer f.Close()
+	opts := web.Options{
+		Addr: addr, Demo: demo, AllowedOrigins: e.cfg.Server.AllowedOrigins, Log: e.log,
+		ShutdownGrace: time.Duration(e.cfg.Server.ShutdownGraceSeconds) * time.Second,
+		Identity: web.Identity{DepartmentHeader: e.cfg.Server.DepartmentHeader, GroupsHeader: e.cfg.Server.GroupsHeader,
+			SecretHeader: e.cfg.Server.SecretHeader, Secret: os.Getenv("KINWORD_PROXY_SECRET"), TrustLoopback: e.cfg.Server.TrustLoopback},
+	}
+	if demo {
+		opts.Personas = demoPersonas
+	}
+	srv, err := web.New(f, opts)
+	if err != nil {
+		return err
+	}
+	hup := make(chan os.Signal, 1)
+	signal.Notify(hup, syscall.SIGHUP)
+	defer signal.Stop(hup)
+	go func() {
+		for range hup {
+			if err := f.Reload(ctx); err != nil {
+				e.log.Error("reload failed; the previous table keeps serving", "err", err)
+			} else {
+				e.log.Warn("reloaded the association table")
+			}
+		}
+	}()
+	return srv.Run(ctx, func(a string) {
+		st := f.Status()
+		fmt.Fprintf(e.stdout, "serving %d documents on http://%s/ (ready in %s; association table: %v)\n", st.Documents, a, time.Since(start).Round(time.Millisecond), st.Table)
+		if demo {
+			fmt.Fprintln(e.stdout, "demo mode: visitors may pick a department persona; invented data only. Ctrl-C stops.")
+		}
+	})
+}

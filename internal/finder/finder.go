@@ -1,0 +1,165 @@
+// Package finder is Kinword's search service: it answers a viewer's query
+// with ranked results, snippets and suggested terms, over an immutable
+// snapshot of the index and the association table that Reload swaps
+// atomically. It must not import gin or database drivers; bleve is reached
+// only through internal/index.
+package finder
+
+import (
+	"context"
+	"crypto/rand"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"sync/atomic"
+	"time"
+
+	gocache "github.com/patrickmn/go-cache"
+
+	"kinword/internal/assoc"
+	"kinword/internal/index"
+	"kinword/internal/rank"
+	"kinword/internal/suggest"
+	"kinword/internal/text"
+)
+
+// ErrNotReady is returned while no index is loaded.
+var ErrNotReady = errors.New("finder: not ready")
+
+// Options configure a Finder. Zero values mean the defaults given.
+type Options struct {
+	// BM25 holds k1 and b; default 1.2 and 0.75.
+	BM25 rank.BM25
+	// Results is the number of results returned; default 10.
+	Results int
+	// SnippetTokens is the snippet length in tokens; default 30.
+	SnippetTokens int
+	// Limits bound queries; defaults 512 bytes and 32 terms.
+	Limits index.QueryLimits
+	// FeedbackDocs is how many of the viewer's top results feed the
+	// suggestions; default 10.
+	FeedbackDocs int
+	// Suggestions is the number of suggested terms; default 5.
+	Suggestions int
+	// AcceptWeight is the weight of an accepted term relative to the
+	// query's strongest term; default 0 means suggest's default (0.3).
+	AcceptWeight float64
+	// CacheTTL is how long a suggestion list is reused for the same viewer
+	// scope and query; default 30 s (the refresh interval).
+	CacheTTL time.Duration
+}
+
+func (o Options) resolve() Options {
+	if o.Results <= 0 {
+		o.Results = 10
+	}
+	if o.SnippetTokens <= 0 {
+		o.SnippetTokens = 30
+	}
+	if o.FeedbackDocs <= 0 {
+		o.FeedbackDocs = 10
+	}
+	if o.Suggestions <= 0 {
+		o.Suggestions = 5
+	}
+	if o.CacheTTL <= 0 {
+		o.CacheTTL = 30 * time.Second
+	}
+	o.BM25 = o.BM25.Resolve()
+	return o
+}
+
+// state is one loaded snapshot: immutable once published.
+type state struct {
+	tbl    *assoc.Table
+	eng    *suggest.Engine
+	loaded time.Time
+}
+
+// Finder serves searches. It is safe for concurrent use.
+type Finder struct {
+	ix    *index.Index
+	opts  Options
+	table string // association table path ("" = none)
+	st    atomic.Pointer[state]
+	cache *gocache.Cache
+}
+
+// Open opens the index in dataDir/index and the association table at
+// dataDir/assoc.kwa (optional: without it suggestions come from feedback
+// alone).
+func Open(ctx context.Context, dataDir string, p *text.Pipeline, opts Options) (*Finder, error) {
+	ix, err := index.Open(ctx, filepath.Join(dataDir, "index"), index.Options{Pipeline: p})
+	if err != nil {
+		return nil, err
+	}
+	ix.Warm()
+	f := &Finder{ix: ix, opts: opts.resolve(), table: filepath.Join(dataDir, "assoc.kwa")}
+	f.cache = gocache.New(f.opts.CacheTTL, 2*f.opts.CacheTTL)
+	if err := f.Reload(ctx); err != nil {
+		ix.Close()
+		return nil, err
+	}
+	return f, nil
+}
+
+// Reload loads the association table again and swaps it in atomically. On
+// any error the previous table keeps serving and the error is returned.
+func (f *Finder) Reload(ctx context.Context) error {
+	var tbl *assoc.Table
+	if f.table != "" {
+		t, err := assoc.Load(f.table)
+		switch {
+		case errors.Is(err, os.ErrNotExist):
+		case err != nil:
+			return fmt.Errorf("finder: reload table: %w", err)
+		default:
+			tbl = t
+		}
+	}
+	eng, err := suggest.New(tbl, suggest.Options{K: f.opts.Suggestions})
+	if err != nil {
+		return fmt.Errorf("finder: reload: %w", err)
+	}
+	f.st.Store(&state{tbl: tbl, eng: eng, loaded: time.Now()})
+	f.cache.Flush()
+	return ctx.Err()
+}
+
+// Close releases the index.
+func (f *Finder) Close() error { return f.ix.Close() }
+
+// Ready reports whether the finder can answer searches.
+func (f *Finder) Ready() error {
+	if f.st.Load() == nil {
+		return ErrNotReady
+	}
+	return nil
+}
+
+// Status describes what is loaded, for /readyz.
+type Status struct {
+	Documents int       `json:"documents"`
+	Table     bool      `json:"association_table"`
+	Loaded    time.Time `json:"loaded"`
+}
+
+// Status reports the loaded snapshot.
+func (f *Finder) Status() Status {
+	s := f.st.Load()
+	if s == nil {
+		return Status{}
+	}
+	return Status{Documents: f.ix.Len(), Table: s.tbl != nil, Loaded: s.loaded}
+}
+
+// Pipeline returns the text pipeline.
+func (f *Finder) Pipeline() *text.Pipeline { return f.ix.Pipeline() }
+
+func newImpressionID() string {
+	var b [12]byte
+	_, _ = rand.Read(b[:])
+	return hex.EncodeToString(b[:])
+}

@@ -1,0 +1,177 @@
+package finder
+
+import (
+	"context"
+	"strings"
+
+	"kinword/internal/access"
+	"kinword/internal/index"
+	"kinword/internal/suggest"
+)
+
+// Result is one ranked document as a searcher sees it.
+type Result struct {
+	Rank       int      `json:"rank"`
+	ID         string   `json:"id"`
+	Title      string   `json:"title"`
+	URL        string   `json:"url,omitempty"`
+	Department string   `json:"department,omitempty"`
+	Snippet    string   `json:"snippet"`
+	Marks      [][2]int `json:"marks,omitempty"`
+	Score      float64  `json:"score"`
+}
+
+// Response answers one search.
+type Response struct {
+	Query       string               `json:"query"`
+	Accepted    []string             `json:"accepted"`
+	Total       int                  `json:"total"`
+	Results     []Result             `json:"results"`
+	Suggestions []suggest.Suggestion `json:"suggestions"`
+	Impression  string               `json:"impression"`
+}
+
+// Request is one search.
+type Request struct {
+	// Query is the searcher's text.
+	Query string
+	// Accepted are suggestion keys the searcher accepted (stems or phrase
+	// keys, as returned in Suggestion.Term).
+	Accepted []string
+	// Viewer is who is searching.
+	Viewer access.Viewer
+	// WithResults false returns suggestions only (for a widget).
+	WithResults bool
+}
+
+// Search runs a query for a viewer: BM25 over readable documents, the
+// accepted terms added at the accepted-term weight, snippets, and
+// suggestions from the viewer's own top results. Errors wrapping
+// index.ErrBadQuery are the caller's fault.
+func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
+	s := f.st.Load()
+	if s == nil {
+		return Response{}, ErrNotReady
+	}
+	q, err := index.ParseQuery(f.ix.Pipeline(), req.Query, f.opts.Limits)
+	if err != nil {
+		return Response{}, err
+	}
+	view := f.ix.View(req.Viewer)
+	sq := make([]suggest.QueryTerm, len(q))
+	for i, t := range q {
+		sq[i] = suggest.QueryTerm{Key: t.Key, Weight: t.Weight}
+	}
+	accepted := cleanAccepted(req.Accepted)
+	full := q
+	if len(accepted) > 0 {
+		x := suggest.Expand(sq, accepted, f.opts.AcceptWeight)
+		full = make([]index.QueryTerm, len(x))
+		for i, t := range x {
+			full[i] = index.QueryTerm{Key: t.Key, Weight: t.Weight}
+		}
+	}
+	k := max(f.opts.Results, f.opts.FeedbackDocs)
+	res, err := view.Search(ctx, full, f.opts.BM25, k)
+	if err != nil {
+		return Response{}, err
+	}
+	out := Response{Query: req.Query, Accepted: accepted, Total: res.Total, Impression: newImpressionID(),
+		Results: []Result{}, Suggestions: f.suggestions(s, view, req.Viewer, q, accepted, res)}
+	if req.WithResults {
+		hits := res.Hits
+		if len(hits) > f.opts.Results {
+			hits = hits[:f.opts.Results]
+		}
+		if out.Results, err = f.render(ctx, view, full, hits); err != nil {
+			return Response{}, err
+		}
+	}
+	return out, nil
+}
+
+// suggestions offers terms from the viewer's own top results, cached per
+// viewer scope, query and accepted terms.
+func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []index.QueryTerm, accepted []string, res index.Result) []suggest.Suggestion {
+	key := v.Key() + "\x00" + queryKey(q) + "\x00" + strings.Join(accepted, "|")
+	if c, ok := f.cache.Get(key); ok {
+		return c.([]suggest.Suggestion)
+	}
+	sq := make([]suggest.QueryTerm, 0, len(q)+len(accepted))
+	for _, t := range q {
+		sq = append(sq, suggest.QueryTerm{Key: t.Key, Weight: t.Weight})
+	}
+	for _, a := range accepted { // accepted terms count as query terms: never offered again
+		sq = append(sq, suggest.QueryTerm{Key: a, Weight: 0.3})
+	}
+	var fb []suggest.Hit
+	for i, h := range res.Hits {
+		if i == f.opts.FeedbackDocs {
+			break
+		}
+		fb = append(fb, suggest.Hit{Doc: h.Doc, Score: h.Score})
+	}
+	sugs := s.eng.Suggest(view, suggest.Request{Query: sq, Viewer: v, Feedback: fb, K: f.opts.Suggestions})
+	if sugs == nil {
+		sugs = []suggest.Suggestion{}
+	}
+	f.cache.SetDefault(key, sugs)
+	return sugs
+}
+
+func (f *Finder) render(ctx context.Context, view *index.View, q []index.QueryTerm, hits []index.Hit) ([]Result, error) {
+	nums := make([]uint32, len(hits))
+	for i, h := range hits {
+		nums[i] = h.Doc
+	}
+	docs, err := view.Stored(ctx, f.ix, nums)
+	if err != nil {
+		return nil, err
+	}
+	byID := map[string]int{}
+	for i, d := range docs {
+		byID[d.ID] = i
+	}
+	out := []Result{}
+	for _, h := range hits {
+		i, ok := byID[h.ID]
+		if !ok {
+			continue
+		}
+		d := docs[i]
+		sn := index.MakeSnippet(f.ix.Pipeline(), d.Body, d.Language, q, f.opts.SnippetTokens)
+		r := Result{Rank: len(out) + 1, ID: d.ID, Title: d.Title, URL: d.URL, Department: d.Department, Snippet: sn.Text, Score: h.Score}
+		for _, m := range sn.Marks {
+			r.Marks = append(r.Marks, [2]int{m.Start, m.End})
+		}
+		out = append(out, r)
+	}
+	return out, nil
+}
+
+func queryKey(q []index.QueryTerm) string {
+	var b strings.Builder
+	for _, t := range q {
+		b.WriteString(t.Key)
+		b.WriteByte('|')
+	}
+	return b.String()
+}
+
+// cleanAccepted trims, de-duplicates and caps accepted keys.
+func cleanAccepted(in []string) []string {
+	seen := map[string]bool{}
+	var out []string
+	for _, a := range in {
+		a = strings.Join(strings.Fields(a), " ")
+		if a == "" || seen[a] || len(a) > 128 {
+			continue
+		}
+		seen[a] = true
+		out = append(out, a)
+		if len(out) == 16 {
+			break
+		}
+	}
+	return out
+}

@@ -1,0 +1,49 @@
+package web
+
+import (
+	"strconv"
+	"time"
+
+	"github.com/gin-gonic/gin"
+	"github.com/prometheus/client_golang/prometheus"
+	"github.com/prometheus/client_golang/prometheus/promhttp"
+)
+
+// metrics are the server's Prometheus series.
+type metrics struct {
+	reg         *prometheus.Registry
+	requests    *prometheus.CounterVec
+	latency     *prometheus.HistogramVec
+	impressions prometheus.Counter
+	accepted    prometheus.Counter
+}
+
+func newMetrics(reg *prometheus.Registry) *metrics {
+	m := &metrics{reg: reg,
+		requests: prometheus.NewCounterVec(prometheus.CounterOpts{Name: "kinword_http_requests_total", Help: "HTTP requests by route and status."}, []string{"route", "status"}),
+		latency: prometheus.NewHistogramVec(prometheus.HistogramOpts{Name: "kinword_http_request_seconds", Help: "HTTP request latency by route.",
+			Buckets: []float64{.0005, .001, .0025, .005, .01, .025, .05, .1, .25, .5, 1, 2.5}}, []string{"route"}),
+		impressions: prometheus.NewCounter(prometheus.CounterOpts{Name: "kinword_suggestion_impressions_total", Help: "Suggested terms shown."}),
+		accepted:    prometheus.NewCounter(prometheus.CounterOpts{Name: "kinword_suggestion_accepts_total", Help: "Accepted terms searched with."}),
+	}
+	reg.MustRegister(m.requests, m.latency, m.impressions, m.accepted, prometheus.NewGoCollector(), prometheus.NewProcessCollector(prometheus.ProcessCollectorOpts{}))
+	return m
+}
+
+// observe counts and times every request by its route pattern.
+func (s *Server) observe() gin.HandlerFunc {
+	return func(c *gin.Context) {
+		start := time.Now()
+		c.Next()
+		route := c.FullPath()
+		if route == "" {
+			route = "unmatched"
+		}
+		s.metrics.requests.WithLabelValues(route, strconv.Itoa(c.Writer.Status())).Inc()
+		s.metrics.latency.WithLabelValues(route).Observe(time.Since(start).Seconds())
+	}
+}
+
+func (s *Server) metricsHandler(c *gin.Context) {
+	promhttp.HandlerFor(s.metrics.reg, promhttp.HandlerOpts{}).ServeHTTP(c.Writer, c.Request)
+}

@@ -1,0 +1,117 @@
+// Package web is Kinword's HTTP layer: one route table, one file per
+// resource, handlers that bind, call the finder, and render JSON or the
+// embedded page. It is the only package that imports gin; it must not
+// import bleve or database drivers.
+package web
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io/fs"
+	"log/slog"
+	"net"
+	"net/http"
+	"time"
+
+	"github.com/gin-gonic/gin"
+	"github.com/prometheus/client_golang/prometheus"
+
+	"kinword/internal/finder"
+	"kinword/static"
+)
+
+// Options configure the server.
+type Options struct {
+	// Addr is the listen address; default 127.0.0.1:7410.
+	Addr string
+	// Identity says how requests are mapped to viewers.
+	Identity Identity
+	// Demo lets a visitor pick a department persona (kinword demo only);
+	// the page says so.
+	Demo bool
+	// Personas are the departments offered in demo mode.
+	Personas []Persona
+	// AllowedOrigins may call the API from other pages (CORS), for the
+	// embeddable widget; empty means same origin only.
+	AllowedOrigins []string
+	// ShutdownGrace bounds the drain of in-flight requests; default 10 s.
+	ShutdownGrace time.Duration
+	// Log receives request errors and lifecycle lines; default slog.Default().
+	Log *slog.Logger
+}
+
+// Persona is a demo department with its groups.
+type Persona struct {
+	Department string   `json:"department"`
+	Label      string   `json:"label"`
+	Groups     []string `json:"groups,omitempty"`
+}
+
+// Server serves the API and the page.
+type Server struct {
+	f       *finder.Finder
+	opts    Options
+	engine  *gin.Engine
+	metrics *metrics
+	assets  fs.FS
+}
+
+// New builds a server; it fails if an embedded asset is missing.
+func New(f *finder.Finder, opts Options) (*Server, error) {
+	if opts.Addr == "" {
+		opts.Addr = "127.0.0.1:7410"
+	}
+	if opts.ShutdownGrace <= 0 {
+		opts.ShutdownGrace = 10 * time.Second
+	}
+	if opts.Log == nil {
+		opts.Log = slog.Default()
+	}
+	for _, a := range requiredAssets {
+		if _, err := fs.Stat(static.FS, a); err != nil {
+			return nil, fmt.Errorf("web: missing embedded asset %s: %w", a, err)
+		}
+	}
+	gin.SetMode(gin.ReleaseMode)
+	s := &Server{f: f, opts: opts, engine: gin.New(), metrics: newMetrics(prometheus.NewRegistry()), assets: static.FS}
+	s.engine.Use(gin.Recovery(), s.securityHeaders(), s.cors(), s.observe())
+	for _, r := range s.routes() {
+		s.engine.Handle(r.Method, r.Path, r.Handler)
+	}
+	s.engine.NoRoute(func(c *gin.Context) { apiError(c, http.StatusNotFound, "not_found", "no such route") })
+	return s, nil
+}
+
+// Handler returns the HTTP handler (for tests).
+func (s *Server) Handler() http.Handler { return s.engine }
+
+// Run listens until ctx ends, then drains in-flight requests.
+func (s *Server) Run(ctx context.Context, ready func(addr string)) error {
+	ln, err := net.Listen("tcp", s.opts.Addr)
+	if err != nil {
+		return fmt.Errorf("web: listen: %w", err)
+	}
+	srv := &http.Server{Handler: s.engine, ReadHeaderTimeout: 10 * time.Second, ReadTimeout: 30 * time.Second, WriteTimeout: 30 * time.Second}
+	errc := make(chan error, 1)
+	go func() { errc <- srv.Serve(ln) }()
+	if ready != nil {
+		ready(ln.Addr().String())
+	}
+	select {
+	case err := <-errc:
+		return fmt.Errorf("web: serve: %w", err)
+	case <-ctx.Done():
+	}
+	sctx, cancel := context.WithTimeout(context.WithoutCancel(ctx), s.opts.ShutdownGrace)
+	defer cancel()
+	if err := srv.Shutdown(sctx); err != nil && !errors.Is(err, http.ErrServerClosed) {
+		return fmt.Errorf("web: shutdown: %w", err)
+	}
+	return nil
+}
+
+// apiError renders the one error shape of the API.
+func apiError(c *gin.Context, status int, code, msg string) {
+	c.AbortWithStatusJSON(status, gin.H{"error": gin.H{"code": code, "message": msg}})
+}

@@ -1,0 +1,118 @@
+// Kinword search page: plain script, no build step.
+(function () {
+  "use strict";
+  var state = { q: "", accepted: [], dismissed: {}, persona: "" };
+  var el = function (id) { return document.getElementById(id); };
+
+  function api(path, params) {
+    var u = new URL(path, window.location.origin);
+    Object.keys(params).forEach(function (k) { if (params[k]) u.searchParams.set(k, params[k]); });
+    if (state.persona) u.searchParams.set("persona", state.persona);
+    return fetch(u, { headers: { "Accept": "application/json" } }).then(function (r) {
+      return r.json().then(function (body) {
+        if (!r.ok) { throw new Error((body.error && body.error.message) || r.statusText); }
+        return body;
+      });
+    });
+  }
+
+  function text(tag, s, cls) {
+    var n = document.createElement(tag);
+    n.textContent = s;
+    if (cls) { n.className = cls; }
+    return n;
+  }
+
+  // marked renders a snippet with its highlighted ranges, safely.
+  function marked(snippet, marks) {
+    var p = document.createElement("p");
+    p.className = "kw-snippet";
+    var last = 0;
+    (marks || []).forEach(function (m) {
+      p.appendChild(document.createTextNode(snippet.slice(last, m[0])));
+      p.appendChild(text("mark", snippet.slice(m[0], m[1])));
+      last = m[1];
+    });
+    p.appendChild(document.createTextNode(snippet.slice(last)));
+    return p;
+  }
+
+  function chip(label, title, onAccept, onDismiss, acceptLabel) {
+    var li = document.createElement("li");
+    var b = text("button", label, "kw-chip");
+    b.type = "button";
+    b.title = title;
+    b.setAttribute("aria-label", acceptLabel + " " + label);
+    b.addEventListener("click", onAccept);
+    b.addEventListener("keydown", function (e) {
+      if ((e.key === "Escape" || e.key === "Delete") && onDismiss) { e.preventDefault(); onDismiss(); }
+    });
+    li.appendChild(b);
+    if (onDismiss) {
+      var x = text("button", "\u00d7", "kw-chip-x");
+      x.type = "button";
+      x.setAttribute("aria-label", "Set aside " + label);
+      x.addEventListener("click", onDismiss);
+      li.appendChild(x);
+    }
+    return li;
+  }
+
+  function render(resp) {
+    var sugg = el("suggestions"), acc = el("accepted"), res = el("results");
+    sugg.textContent = ""; acc.textContent = ""; res.textContent = "";
+    state.accepted.forEach(function (a) {
+      acc.appendChild(chip(a.display, "Remove this term", function () {
+        state.accepted = state.accepted.filter(function (x) { return x.term !== a.term; });
+        run();
+      }, null, "Remove"));
+    });
+    el("accepted-box").hidden = state.accepted.length === 0;
+    var shown = resp.suggestions.filter(function (s) { return !state.dismissed[s.term]; });
+    shown.forEach(function (s) {
+      var why = "Offered from " + s.evidence.sources.join(" and ") + "; in " + s.evidence.feedback_docs + " of your top results";
+      sugg.appendChild(chip(s.display, why, function () {
+        state.accepted.push({ term: s.term, display: s.display });
+        run();
+      }, function () { state.dismissed[s.term] = true; render(resp); }, "Add"));
+    });
+    el("sugg-box").hidden = shown.length === 0;
+    el("status").textContent = resp.total + (resp.total === 1 ? " document" : " documents") + " found";
+    resp.results.forEach(function (r) {
+      var li = document.createElement("li");
+      var a = text("a", r.title, "kw-title");
+      a.href = r.url || "#";
+      li.appendChild(a);
+      li.appendChild(text("span", r.department, "kw-dept"));
+      li.appendChild(marked(r.snippet, r.marks));
+      res.appendChild(li);
+    });
+  }
+
+  function run() {
+    if (!state.q) { return; }
+    el("status").textContent = "Searching\u2026";
+    api("/api/v1/lookup", { q: state.q, accepted: state.accepted.map(function (a) { return a.term; }).join("|") })
+      .then(render)
+      .catch(function (err) { el("status").textContent = "Search failed: " + err.message; });
+  }
+
+  el("search").addEventListener("submit", function (e) {
+    e.preventDefault();
+    state.q = el("q").value.trim();
+    state.accepted = []; state.dismissed = {};
+    run();
+  });
+
+  api("/api/v1/whoami", {}).then(function (me) {
+    if (!me.demo) { return; }
+    var sel = el("persona");
+    me.personas.forEach(function (p) {
+      var o = text("option", p.label);
+      o.value = p.department;
+      sel.appendChild(o);
+    });
+    sel.addEventListener("change", function () { state.persona = sel.value; run(); });
+    el("demo-banner").hidden = false;
+  });
+})();
