@@ -5,10 +5,12 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"strings"
 
 	"kinword/internal/access"
 	"kinword/internal/assoc"
 	"kinword/internal/index"
+	"kinword/internal/suggest"
 )
 
 func init() {
@@ -51,7 +53,12 @@ func runDemo(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	if err := mineDemo(ctx, e, ix); err != nil {
+	tbl, err := mineDemo(ctx, e, ix)
+	if err != nil {
+		return err
+	}
+	eng, err := suggest.New(tbl, suggest.Options{})
+	if err != nil {
 		return err
 	}
 	fmt.Fprintf(e.stdout, "Tarnwick Water & Power demo intranet (invented organisation, demo data only)\n")
@@ -75,6 +82,15 @@ func runDemo(ctx context.Context, e *env, args []string) error {
 		for _, r := range out {
 			fmt.Fprintf(e.stdout, "  %d. %s [%s] %.2f\n", r.Rank, r.Title, r.Department, r.Score)
 		}
+		full, err := view.Search(ctx, q, e.bm25(), 10)
+		if err != nil {
+			return err
+		}
+		var names []string
+		for _, sg := range eng.Suggest(view, suggest.Request{Query: toSuggestQuery(q), Viewer: v, Feedback: toHits(full, 10)}) {
+			names = append(names, sg.Display)
+		}
+		fmt.Fprintf(e.stdout, "  related terms: %s\n", strings.Join(names, " · "))
 	}
 	fmt.Fprintf(e.stdout, "\nnext: kinword search --data %s \"annual leave\" --viewer dept=people-culture\n", e.dataDir)
 	fmt.Fprintf(e.stdout, "      kinword eval --collection %s\n", *corpus)
@@ -88,10 +104,10 @@ func runDemo(ctx context.Context, e *env, args []string) error {
 }
 
 // mineDemo mines the demo index into the data folder's table.
-func mineDemo(ctx context.Context, e *env, ix *index.Index) error {
+func mineDemo(ctx context.Context, e *env, ix *index.Index) (*assoc.Table, error) {
 	tbl, err := assoc.Mine(ctx, indexCorpus{all: ix.View(access.Viewer{Groups: ix.Groups()}), open: ix.View(access.Anonymous)}, assoc.Options{TempDir: e.dataDir})
 	if err != nil {
-		return err
+		return nil, err
 	}
-	return tbl.Write(e.tableFile())
+	return tbl, tbl.Write(e.tableFile())
 }
