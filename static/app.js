@@ -23,17 +23,13 @@
     return n;
   }
 
-  // marked renders a snippet with its highlighted ranges, safely.
-  function marked(snippet, marks) {
+  // marked renders a snippet's segments, matches highlighted, as text.
+  function marked(segments) {
     var p = document.createElement("p");
     p.className = "kw-snippet";
-    var last = 0;
-    (marks || []).forEach(function (m) {
-      p.appendChild(document.createTextNode(snippet.slice(last, m[0])));
-      p.appendChild(text("mark", snippet.slice(m[0], m[1])));
-      last = m[1];
+    (segments || []).forEach(function (s) {
+      p.appendChild(s.mark ? text("mark", s.text) : document.createTextNode(s.text));
     });
-    p.appendChild(document.createTextNode(snippet.slice(last)));
     return p;
   }
 
@@ -84,7 +80,7 @@
       a.href = r.url || "#";
       li.appendChild(a);
       li.appendChild(text("span", r.department, "kw-dept"));
-      li.appendChild(marked(r.snippet, r.marks));
+      li.appendChild(marked(r.segments));
       res.appendChild(li);
     });
   }
@@ -104,6 +100,15 @@
     run();
   });
 
+  // A shared link (?q=...&persona=...) runs its search on load.
+  var params = new URLSearchParams(window.location.search);
+  state.persona = params.get("persona") || "";
+  if (params.get("q")) {
+    el("q").value = params.get("q");
+    state.q = el("q").value.trim();
+    run();
+  }
+
   api("/api/v1/whoami", {}).then(function (me) {
     if (!me.demo) { return; }
     var sel = el("persona");
@@ -112,6 +117,7 @@
       o.value = p.department;
       sel.appendChild(o);
     });
+    sel.value = state.persona;
     sel.addEventListener("change", function () { state.persona = sel.value; run(); });
     el("demo-banner").hidden = false;
   });

@@ -11,14 +11,37 @@ import (
 
 // Result is one ranked document as a searcher sees it.
 type Result struct {
-	Rank       int      `json:"rank"`
-	ID         string   `json:"id"`
-	Title      string   `json:"title"`
-	URL        string   `json:"url,omitempty"`
-	Department string   `json:"department,omitempty"`
-	Snippet    string   `json:"snippet"`
-	Marks      [][2]int `json:"marks,omitempty"`
-	Score      float64  `json:"score"`
+	Rank       int       `json:"rank"`
+	ID         string    `json:"id"`
+	Title      string    `json:"title"`
+	URL        string    `json:"url,omitempty"`
+	Department string    `json:"department,omitempty"`
+	Snippet    string    `json:"snippet"`
+	Segments   []Segment `json:"segments"`
+	Score      float64   `json:"score"`
+}
+
+// Segment is a run of snippet text, marked where it matched the query, so
+// clients need no byte offsets.
+type Segment struct {
+	Text string `json:"text"`
+	Mark bool   `json:"mark,omitempty"`
+}
+
+func segments(sn index.Snippet) []Segment {
+	var out []Segment
+	last := 0
+	for _, m := range sn.Marks {
+		if m.Start > last {
+			out = append(out, Segment{Text: sn.Text[last:m.Start]})
+		}
+		out = append(out, Segment{Text: sn.Text[m.Start:m.End], Mark: true})
+		last = m.End
+	}
+	if last < len(sn.Text) {
+		out = append(out, Segment{Text: sn.Text[last:]})
+	}
+	return out
 }
 
 // Response answers one search.
@@ -140,11 +163,8 @@ func (f *Finder) render(ctx context.Context, view *index.View, q []index.QueryTe
 		}
 		d := docs[i]
 		sn := index.MakeSnippet(f.ix.Pipeline(), d.Body, d.Language, q, f.opts.SnippetTokens)
-		r := Result{Rank: len(out) + 1, ID: d.ID, Title: d.Title, URL: d.URL, Department: d.Department, Snippet: sn.Text, Score: h.Score}
-		for _, m := range sn.Marks {
-			r.Marks = append(r.Marks, [2]int{m.Start, m.End})
-		}
-		out = append(out, r)
+		out = append(out, Result{Rank: len(out) + 1, ID: d.ID, Title: d.Title, URL: d.URL, Department: d.Department,
+			Snippet: sn.Text, Segments: segments(sn), Score: h.Score})
 	}
 	return out, nil
 }
