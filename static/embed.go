@@ -7,5 +7,5 @@ import "embed"
 
 // FS holds the embedded assets.
 //
-//go:embed index.html app.js widget.js brand.css
+//go:embed index.html app.js widget.js brand.css openapi.json
 var FS embed.FS

@@ -11,7 +11,7 @@ import (
 )
 
 // requiredAssets must be embedded; New fails without them.
-var requiredAssets = []string{"index.html", "app.js", "brand.css", "widget.js"}
+var requiredAssets = []string{"index.html", "app.js", "brand.css", "widget.js", "openapi.json"}
 
 func (s *Server) page(c *gin.Context) { s.serveAsset(c, "index.html") }
 
@@ -33,3 +33,5 @@ func (s *Server) serveAsset(c *gin.Context, name string) {
 	c.Header("Cache-Control", "no-cache")
 	c.Data(http.StatusOK, ct, b)
 }
+
+func (s *Server) openapi(c *gin.Context) { s.serveAsset(c, "openapi.json") }
