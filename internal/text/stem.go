@@ -34,8 +34,14 @@ func ValidLanguage(lang string) bool {
 // the repeat tokens of a corpus (most of them) into a map lookup.
 type Stemmer struct {
 	lang string
-	memo sync.Map // string -> string
-	size atomic.Int64
+	// read is the published memo, never modified once stored, so lookups
+	// take no lock; new stems collect in dirty and are published in bulk
+	// (copy on write) once dirty holds a quarter of read's size. A corpus's
+	// vocabulary settles quickly, so copies become rare.
+	read  atomic.Pointer[map[string]string]
+	mu    sync.Mutex
+	dirty map[string]string
+	size  int
 }
 
 // memoLimit caps the memo (entries) so that a corpus full of unique tokens
@@ -60,19 +66,60 @@ func (s *Stemmer) Language() string { return s.lang }
 // too (the library's option to leave them alone is off), so Stem agrees with
 // the Snowball reference vocabulary word for word.
 func (s *Stemmer) Stem(w string) string {
-	if v, ok := s.memo.Load(w); ok {
-		return v.(string)
+	if m := s.read.Load(); m != nil {
+		if v, ok := (*m)[w]; ok {
+			return v
+		}
+	}
+	s.mu.Lock()
+	v, ok := s.dirty[w]
+	s.mu.Unlock()
+	if ok {
+		return v
 	}
 	st, err := snowball.Stem(w, s.lang, true)
 	if err != nil {
 		st = w // unreachable: the language was validated
 	}
-	if s.size.Load() < memoLimit {
-		if _, loaded := s.memo.LoadOrStore(w, st); !loaded {
-			s.size.Add(1)
+	s.remember(w, st)
+	return st
+}
+
+// remember adds a stem to the memo, publishing a new read map when enough
+// new entries have gathered.
+func (s *Stemmer) remember(w, st string) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	if s.size >= memoLimit {
+		return
+	}
+	if s.dirty == nil {
+		s.dirty = map[string]string{}
+	}
+	if _, ok := s.dirty[w]; ok {
+		return
+	}
+	s.dirty[w] = st
+	s.size++
+	old := s.read.Load()
+	n := 0
+	if old != nil {
+		n = len(*old)
+	}
+	if len(s.dirty) < max(64, n/4) {
+		return
+	}
+	m := make(map[string]string, n+len(s.dirty))
+	if old != nil {
+		for k, v := range *old {
+			m[k] = v
 		}
 	}
-	return st
+	for k, v := range s.dirty {
+		m[k] = v
+	}
+	s.read.Store(&m)
+	s.dirty = nil
 }
 
 func sortStrings(s []string) { sort.Strings(s) }

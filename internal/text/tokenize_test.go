@@ -182,3 +182,29 @@ func BenchmarkStemUncached(b *testing.B) {
 		}
 	}
 }
+
+// TestStemmerConcurrentMemo: the copy-on-write memo gives the same stems
+// under concurrent use as a fresh stemmer gives serially (run with -race).
+func TestStemmerConcurrentMemo(t *testing.T) {
+	words := Words(strings.Repeat(benchText, 3) + " reimbursement travelling expenses onboarding induction leakage")
+	ref, _ := NewStemmer(English)
+	want := make([]string, len(words))
+	for i, w := range words {
+		want[i] = ref.Stem(w)
+	}
+	st, _ := NewStemmer(English)
+	done := make(chan bool)
+	for g := 0; g < 4; g++ {
+		go func() {
+			for i, w := range words {
+				if got := st.Stem(w); got != want[i] {
+					t.Errorf("Stem(%q) = %q, want %q", w, got, want[i])
+				}
+			}
+			done <- true
+		}()
+	}
+	for g := 0; g < 4; g++ {
+		<-done
+	}
+}
