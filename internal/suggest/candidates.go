@@ -41,7 +41,7 @@ type cand struct {
 
 	display string  // chosen display, set by run.display
 	phrase  float64 // phrase part
-	parts   [4]float64
+	parts   [numParts]float64
 	score   float64
 }
 

@@ -6,7 +6,8 @@
 // a query word. Candidates are filtered (stopwords, the query's own terms,
 // too common or too rare terms, numbers and short tokens, and the
 // collection's generic words found by residual IDF), scored by a weighted
-// sum of normalised parts, and chosen for diversity by maximal marginal
+// sum of normalised parts (by default chiefly Robertson's offer weight over
+// the feedback documents), and chosen for diversity by maximal marginal
 // relevance. Every suggestion carries its evidence.
 //
 // Access control: every statistic comes from the Corpus passed in, which

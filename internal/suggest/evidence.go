@@ -31,7 +31,9 @@ type Evidence struct {
 	// results) contain it.
 	FeedbackDocs int `json:"feedback_docs"`
 	// Parts are the score parts, each in [0, 1], by name: "feedback",
-	// "association", "coverage", "phrase". Score is their weighted sum.
+	// "association", "coverage", "phrase", "offer". Score is their
+	// weighted sum (see Options for the weights; a part of weight 0 is
+	// still reported).
 	Parts map[string]float64 `json:"parts"`
 	// Neighbours are the query terms (keys) that proposed it through the
 	// association table or a phrase containing them.

@@ -34,9 +34,9 @@ func Example() {
 	fmt.Println(Expand(req.Query, Keys(got[:2]), 0))
 	// Output:
 	// main break [feedback association phrase], in 10 of the top 10
-	// night flow [feedback association phrase], in 6 of the top 10
 	// logger     [feedback association], in 8 of the top 10
 	// burst      [feedback association], in 7 of the top 10
 	// leakage    [feedback association], in 7 of the top 10
-	// [{leak 1} {main break 0.3} {night flow 0.3}]
+	// night flow [feedback association phrase], in 6 of the top 10
+	// [{leak 1} {main break 0.3} {logger 0.3}]
 }

@@ -15,10 +15,11 @@ const (
 	partAssoc
 	partCoverage
 	partPhrase
+	partOffer
 	numParts
 )
 
-var partNames = [numParts]string{"feedback", "association", "coverage", "phrase"}
+var partNames = [numParts]string{"feedback", "association", "coverage", "phrase", "offer"}
 
 // docSet computes (once) which feedback documents contain cd, as a bit set,
 // and returns how many do. A phrase must occur as consecutive tokens.
@@ -75,18 +76,24 @@ func hasRun(toks, ids []uint32) bool {
 //     largest over the candidates;
 //   - coverage: the share of feedback documents containing c;
 //   - phrase: 1 for a phrase whose every word is a query word or a
-//     feedback or association candidate, else 0.
+//     feedback or association candidate, else 0;
+//   - offer: Robertson's offer weight over the feedback documents (see
+//     offerWeight), 0 when negative, divided by the largest over the
+//     candidates.
 func (r *run) score() []*cand {
 	o := &r.e.opt
-	var maxFb, maxAs float64
-	for _, cd := range r.list {
+	var maxFb, maxAs, maxOw float64
+	ow := make([]float64, len(r.list))
+	for i, cd := range r.list {
 		maxFb, maxAs = max(maxFb, cd.fbRaw), max(maxAs, cd.asRaw)
+		ow[i] = max(r.offerWeight(cd), 0)
+		maxOw = max(maxOw, ow[i])
 	}
-	w := [numParts]float64{o.FeedbackWeight, o.AssocWeight, o.CoverageWeight, o.PhraseWeight}
+	w := [numParts]float64{o.FeedbackWeight, o.AssocWeight, o.CoverageWeight, o.PhraseWeight, o.OfferWeight}
 	var pool []*cand
-	for _, cd := range r.list {
+	for i, cd := range r.list {
 		cd.parts = [numParts]float64{ratio(cd.fbRaw, maxFb), ratio(cd.asRaw, maxAs),
-			ratio(float64(r.docSet(cd)), float64(len(r.docs))), cd.phrase}
+			ratio(float64(r.docSet(cd)), float64(len(r.docs))), cd.phrase, ratio(ow[i], maxOw)}
 		cd.score = 0
 		for i, p := range cd.parts {
 			cd.score += w[i] * p
