@@ -34,20 +34,21 @@ var (
 	benchGroupsCorpus *MemCorpus
 )
 
-// zipfGroupsCorpus is the benchmark corpus with every tenth document
-// restricted to one of four access groups (10% restricted), so Mine builds
-// five scopes.
-func zipfGroupsCorpus() *MemCorpus {
-	benchGroupsOnce.Do(func() {
-		spec := zipfSpec(10000)
-		spec.groups = func(i int) []string {
-			if i%10 != 0 {
-				return nil
-			}
-			return []string{fmt.Sprintf("group%d", i/10%4)}
+// groupsSpec is zipfSpec with every tenth document restricted to one of
+// four access groups (10% restricted), so Mine builds five scopes.
+func groupsSpec(docs int) synthSpec {
+	spec := zipfSpec(docs)
+	spec.groups = func(i int) []string {
+		if i%10 != 0 {
+			return nil
 		}
-		benchGroupsCorpus = synthCorpus(spec)
-	})
+		return []string{fmt.Sprintf("group%d", i/10%4)}
+	}
+	return spec
+}
+
+func zipfGroupsCorpus() *MemCorpus {
+	benchGroupsOnce.Do(func() { benchGroupsCorpus = synthCorpus(groupsSpec(10000)) })
 	return benchGroupsCorpus
 }
 
@@ -76,7 +77,16 @@ func BenchmarkMine(b *testing.B) { benchMine(b, Options{}) }
 
 // BenchmarkMineGroups mines the corpus with four restricted groups: the
 // open documents are counted once and reused by every group scope.
-func BenchmarkMineGroups(b *testing.B) { benchMineOn(b, zipfGroupsCorpus(), Options{}) }
+// Set KINWORD_BENCH_LARGE=1 to also mine 100k documents (about a minute).
+func BenchmarkMineGroups(b *testing.B) {
+	b.Run("docs=10000", func(b *testing.B) { benchMineOn(b, zipfGroupsCorpus(), Options{}) })
+	b.Run("docs=100000", func(b *testing.B) {
+		if os.Getenv("KINWORD_BENCH_LARGE") == "" {
+			b.Skip("set KINWORD_BENCH_LARGE=1")
+		}
+		benchMineOn(b, synthCorpus(groupsSpec(100000)), Options{})
+	})
+}
 
 // BenchmarkMineNoPhrases isolates counting from phrase detection.
 func BenchmarkMineNoPhrases(b *testing.B) { benchMine(b, Options{MinPhraseCount: -1}) }

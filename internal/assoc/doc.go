@@ -12,6 +12,26 @@
 // can never learn a term, phrase or count that stems from a document they may
 // not read.
 //
+// The open documents are counted once. All counts are sums over documents,
+// and a group's own documents are never open, so a group scope's counts are
+// the open documents' counts plus those over the group's own documents;
+// their sorted runs are merged (summed) before ranking. Exact semantics:
+//   - Vocabulary: a term (or phrase) is counted in a scope when its document
+//     frequency over the scope's documents reaches MinDF. The open documents'
+//     pairs are therefore counted for every term counted in some scope, also
+//     one below MinDF among the open documents alone; each scope ranks only
+//     the pairs of its own terms, so the open table equals mining the open
+//     documents alone.
+//   - Phrases: the open scope's phrases are detected on the open documents.
+//     A group's phrases are the open ones plus those detected on the
+//     adjacency counts over the open and the group's documents together.
+//     Open documents are rewritten with the open phrases in every scope, a
+//     group's own documents with the group's phrases, so a phrase found only
+//     for a group counts only its occurrences in the group's documents.
+//     With phrases off, or when detection over the open and the group's
+//     documents together finds exactly the open phrases, a group scope
+//     equals mining the group's documents plus the open ones as one corpus.
+//
 // Counting runs in bounded memory: pair counts live in compact open-addressing
 // tables that spill sorted runs to temporary files when they outgrow
 // Options.MemoryBudget, and the runs are k-way merged, giving exactly the

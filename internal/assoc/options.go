@@ -50,7 +50,8 @@ type Options struct {
 	// Measure selects the ranking used to choose the TopK neighbours.
 	// Default (zero) MeasureLLR.
 	Measure Measure
-	// MemoryBudget bounds, in bytes, the pair- and phrase-count tables; when
+	// MemoryBudget bounds, in bytes, the pair- and phrase-count tables,
+	// including the open documents' runs held for the group scopes; when
 	// they outgrow it, sorted runs spill to files under TempDir. Per-term
 	// arrays and the kept neighbour lists are proportional to the vocabulary
 	// and not included. Default 1 GiB.
@@ -63,8 +64,9 @@ type Options struct {
 	Workers int
 	// Progress, if set, is called from Mine's goroutine with the phase name
 	// ("scan", "bigrams", "trigrams", "vocab", "pairs", "rank"), the units
-	// done and the total for that phase (document visits summed over the
-	// scopes, or scopes for "rank"). A phase may start with done = 0.
+	// done and the total for that phase (document visits: the open
+	// documents once plus each group's own documents; scopes for "rank").
+	// A phase may start with done = 0.
 	Progress func(phase string, done, total int)
 }
 

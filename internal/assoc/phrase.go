@@ -142,8 +142,9 @@ func (m *miner) adjacency(ctx context.Context, docs []int32, ps *phraseSet, size
 
 // selectPhrases returns, sorted by key, the candidate pairs whose summed
 // adjacency counts over the base part and own (nil: the base alone) pass
-// the phrase thresholds. The store's run files are own's and are consumed.
-func (m *miner) selectPhrases(ctx context.Context, base *adjPart, baseRuns *baseRuns, own *adjPart) ([]uint64, error) {
+// the phrase thresholds. runs are the base part's kept runs; the store's
+// run files are own's and are consumed.
+func (m *miner) selectPhrases(ctx context.Context, base *adjPart, runs *baseRuns, own *adjPart) ([]uint64, error) {
 	first, second, nAdj := base.first, base.second, base.n
 	var ownRuns [][]slot
 	if own != nil {
@@ -157,7 +158,7 @@ func (m *miner) selectPhrases(ctx context.Context, base *adjPart, baseRuns *base
 	}
 	var kept []uint64
 	minCount, minDocs := uint32(m.o.MinPhraseCount), uint32(m.o.MinDF)
-	err := baseRuns.merge(ctx, m.store, ownRuns, func(e entry) error {
+	err := runs.merge(ctx, m.store, ownRuns, func(e entry) error {
 		if e.u < minCount || e.d < minDocs {
 			return nil
 		}
@@ -225,6 +226,7 @@ func (m *miner) detectPhrases(ctx context.Context) ([]*phraseSet, []phraseDef, e
 	if err != nil {
 		return nil, nil, err
 	}
+	open.runs = nil // held by base from here on
 	if bigrams[0], err = m.selectPhrases(ctx, open, base, nil); err != nil {
 		return nil, nil, err
 	}
@@ -266,6 +268,7 @@ func (m *miner) detectPhrases(ctx context.Context) ([]*phraseSet, []phraseDef, e
 	if base, err = m.keepBase(ctx, open.runs, reuse); err != nil {
 		return nil, nil, err
 	}
+	open.runs = nil
 	if trigramKeys[0], err = m.selectPhrases(ctx, open, base, nil); err != nil {
 		return nil, nil, err
 	}
@@ -290,18 +293,40 @@ func (m *miner) detectPhrases(ctx context.Context) ([]*phraseSet, []phraseDef, e
 	}
 
 	defs, ids := m.phraseDefs(bigrams, trigrams)
+	// Table-wide IDs of the union's bigrams (-1: dropped) and of every
+	// trigram, looked up once rather than per scope.
+	bigramID := make([]int64, len(union))
+	for i, k := range union {
+		bigramID[i] = -1
+		if id, ok := ids[phraseKey(m.c, uint32(k>>32), uint32(k))]; ok {
+			bigramID[i] = int64(id)
+		}
+	}
+	trigramID := map[uint64]int64{}
+	for _, keys := range trigramKeys {
+		for _, k := range keys {
+			if _, done := trigramID[k]; done {
+				continue
+			}
+			bg := union[int(k>>32)-nTerms]
+			trigramID[k] = -1
+			if id, ok := ids[phraseKey(m.c, uint32(bg>>32), uint32(bg), uint32(k))]; ok {
+				trigramID[k] = int64(id)
+			}
+		}
+	}
 	for s := range sets {
 		ps := newPhraseSet(nTerms)
 		for _, k := range bigrams[s] {
-			if id, ok := ids[phraseKey(m.c, uint32(k>>32), uint32(k))]; ok {
-				ps.addBigram(uint32(k>>32), uint32(k), id)
+			i, _ := slices.BinarySearch(union, k)
+			if id := bigramID[i]; id >= 0 {
+				ps.addBigram(uint32(k>>32), uint32(k), uint32(id))
 			}
 		}
-		for _, t := range trigrams[s] {
-			bid, ok1 := ids[phraseKey(m.c, t[0], t[1])]
-			tid, ok2 := ids[phraseKey(m.c, t[0], t[1], t[2])]
-			if ok1 && ok2 {
-				ps.trigram[uint64(bid)<<32|uint64(t[2])] = tid
+		for _, k := range trigramKeys[s] {
+			bid, tid := bigramID[int(k>>32)-nTerms], trigramID[k]
+			if bid >= 0 && tid >= 0 {
+				ps.trigram[uint64(bid)<<32|uint64(uint32(k))] = uint32(tid)
 			}
 		}
 		sets[s] = ps
@@ -344,12 +369,19 @@ func (m *miner) phraseDefs(bigrams [][]uint64, trigrams [][][3]uint32) ([]phrase
 		}
 		byKey[key] = phraseDef{parts: slices.Clone(parts), key: key, display: strings.Join(disp, " ")}
 	}
+	seen2, seen3 := map[uint64]bool{}, map[[3]uint32]bool{} // group scopes repeat the open phrases
 	for s := range bigrams {
 		for _, k := range bigrams[s] {
-			add(uint32(k>>32), uint32(k))
+			if !seen2[k] {
+				seen2[k] = true
+				add(uint32(k>>32), uint32(k))
+			}
 		}
 		for _, t := range trigrams[s] {
-			add(t[0], t[1], t[2])
+			if !seen3[t] {
+				seen3[t] = true
+				add(t[0], t[1], t[2])
+			}
 		}
 	}
 	defs := make([]phraseDef, 0, len(byKey))

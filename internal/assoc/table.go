@@ -2,11 +2,13 @@ package assoc
 
 import (
 	"cmp"
+	"encoding/binary"
 	"encoding/hex"
 	"slices"
 	"sort"
 	"strings"
 	"sync"
+	"sync/atomic"
 
 	"kinword/internal/access"
 )
@@ -34,7 +36,18 @@ type Table struct {
 
 	partsOnce sync.Once
 	parts     map[string][]uint32 // word stem -> phrases containing it
+
+	// withCache holds PhrasesWith results per stem and visible scope set
+	// (phraseCacheKey -> []Phrase), at most maxPhraseCache entries.
+	withCache sync.Map
+	withN     atomic.Int64
 }
+
+// maxPhraseCache bounds the PhrasesWith cache; past it results are built
+// per call.
+const maxPhraseCache = 1 << 14
+
+type phraseCacheKey struct{ stem, scopes string }
 
 // scopeTable is one scope's counts. Per-term arrays are indexed by table
 // ID; df == 0 means the term is not part of the scope.
@@ -252,9 +265,21 @@ func (t *Table) PhrasesWith(v access.Viewer, stem string) []Phrase {
 			}
 		}
 	})
+	ids := t.parts[stem]
+	if len(ids) == 0 {
+		return nil
+	}
 	scopes := t.viewerScopes(v)
+	kb := make([]byte, 0, 4*len(scopes))
+	for _, sc := range scopes {
+		kb = binary.LittleEndian.AppendUint32(kb, uint32(sc))
+	}
+	key := phraseCacheKey{stem, string(kb)}
+	if c, ok := t.withCache.Load(key); ok {
+		return clonePhrases(c.([]Phrase))
+	}
 	var out []Phrase
-	for _, id := range t.parts[stem] {
+	for _, id := range ids {
 		p := Phrase{ID: id, Key: t.term(id), Display: t.display(id), Words: int(t.words[id])}
 		for _, s := range scopes {
 			if df := int(t.scopes[s].df[id]); df > 0 {
@@ -272,6 +297,24 @@ func (t *Table) PhrasesWith(v access.Viewer, stem string) []Phrase {
 		}
 		return out[i].Key < out[j].Key
 	})
+	if t.withN.Load() < maxPhraseCache {
+		if _, loaded := t.withCache.LoadOrStore(key, out); !loaded {
+			t.withN.Add(1)
+		}
+		return clonePhrases(out)
+	}
+	return out
+}
+
+// clonePhrases copies a cached result so callers may modify it.
+func clonePhrases(ps []Phrase) []Phrase {
+	if ps == nil {
+		return nil
+	}
+	out := slices.Clone(ps)
+	for i := range out {
+		out[i].Scopes = slices.Clone(out[i].Scopes)
+	}
 	return out
 }
 

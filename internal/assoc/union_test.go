@@ -1,7 +1,9 @@
 package assoc
 
 import (
+	"bytes"
 	"context"
+	"os"
 	"reflect"
 	"slices"
 	"testing"
@@ -255,4 +257,35 @@ func unionStrings(a, b []string) []string {
 	out := slices.Concat(a, b)
 	slices.Sort(out)
 	return slices.Compact(out)
+}
+
+// TestSpillIdentityGroups: with several groups (one document in two), the
+// open part's runs are spilled, consolidated and re-read by every group
+// scope; the artifact must equal the all-in-memory one.
+func TestSpillIdentityGroups(t *testing.T) {
+	old := mergeFanIn
+	mergeFanIn = 4
+	defer func() { mergeFanIn = old }()
+	c := synthCorpus(groupedSpec())
+	base, err := Mine(context.Background(), c, Options{MinPhraseCount: 3, Workers: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := writeBytes(t, base)
+	for _, workers := range []int{1, 2} {
+		tmp := t.TempDir()
+		tb, err := Mine(context.Background(), c, Options{MinPhraseCount: 3, MemoryBudget: 1, Workers: workers, TempDir: tmp})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if tb.stats.spills < 2 {
+			t.Fatalf("only %d spills", tb.stats.spills)
+		}
+		if !bytes.Equal(writeBytes(t, tb), want) {
+			t.Fatalf("workers %d: artifact differs from the in-memory run", workers)
+		}
+		if left, _ := os.ReadDir(tmp); len(left) != 0 {
+			t.Errorf("spill files left behind: %v", left)
+		}
+	}
 }
