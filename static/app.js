@@ -1,7 +1,29 @@
 // Kinword search page: plain script, no build step.
 (function () {
   "use strict";
-  var state = { q: "", accepted: [], dismissed: {}, persona: "" };
+  var state = { q: "", accepted: [], dismissed: {}, persona: "", impression: "" };
+
+  function eventID() {
+    var b = new Uint8Array(16);
+    window.crypto.getRandomValues(b);
+    return Array.prototype.map.call(b, function (x) { return ("0" + x.toString(16)).slice(-2); }).join("");
+  }
+
+  // Events go out one batch at a time, in order, so an accept never
+  // overtakes the impression it refers to.
+  var queue = Promise.resolve();
+  function signal(ev) {
+    ev.id = eventID();
+    ev.impression = ev.impression || state.impression;
+    ev.query = state.q;
+    var u = new URL("/api/v1/signals", window.location.origin);
+    if (state.persona) { u.searchParams.set("persona", state.persona); }
+    queue = queue.then(function () {
+      return fetch(u, { method: "POST", keepalive: true, headers: { "Content-Type": "application/json" },
+        body: JSON.stringify({ events: [ev] }) }).catch(function () {});
+    });
+    return queue;
+  }
   var el = function (id) { return document.getElementById(id); };
 
   function api(path, params) {
@@ -65,12 +87,21 @@
     });
     el("accepted-box").hidden = state.accepted.length === 0;
     var shown = resp.suggestions.filter(function (s) { return !state.dismissed[s.term]; });
-    shown.forEach(function (s) {
+    if (resp.impression !== state.impression && shown.length) {
+      state.impression = resp.impression;
+      signal({ kind: "impression", terms: shown.map(function (s) { return s.term; }),
+        sources: shown.map(function (s) { return s.evidence.sources.join("+"); }) });
+    }
+    shown.forEach(function (s, pos) {
       var why = "Offered from " + s.evidence.sources.join(" and ") + "; in " + s.evidence.feedback_docs + " of your top results";
       sugg.appendChild(chip(s.display, why, function () {
+        signal({ kind: "accept", term: s.term, position: pos });
         state.accepted.push({ term: s.term, display: s.display });
         run();
-      }, function () { state.dismissed[s.term] = true; render(resp); }, "Add"));
+      }, function () {
+        signal({ kind: "dismiss", term: s.term, position: pos });
+        state.dismissed[s.term] = true; render(resp);
+      }, "Add"));
     });
     el("sugg-box").hidden = shown.length === 0;
     el("status").textContent = resp.total + (resp.total === 1 ? " document" : " documents") + " found";
@@ -78,6 +109,11 @@
       var li = document.createElement("li");
       var a = text("a", r.title, "kw-title");
       a.href = r.url || "#";
+      a.addEventListener("click", function () {
+        if (state.accepted.length) {
+          signal({ kind: "click", doc: r.id, rank: r.rank, terms: state.accepted.map(function (x) { return x.term; }) });
+        }
+      });
       li.appendChild(a);
       li.appendChild(text("span", r.department, "kw-dept"));
       li.appendChild(marked(r.segments));

@@ -5,10 +5,13 @@ import (
 	"fmt"
 	"os"
 	"os/signal"
+	"path/filepath"
+	"strings"
 	"syscall"
 	"time"
 
 	"kinword/internal/finder"
+	"kinword/internal/store"
 	"kinword/internal/text"
 	"kinword/internal/web"
 )
@@ -59,8 +62,15 @@ func (e *env) serve(ctx context.Context, addr string, demo bool) error {
 		return err
 	}
 	defer f.Close()
-	opts := web.Options{
-		Addr: addr, Demo: demo, AllowedOrigins: e.cfg.Server.AllowedOrigins, Log: e.log,
+	st, err := e.openStore(ctx)
+	if err != nil {
+		return err
+	}
+	defer st.Close()
+	refresh := time.Duration(e.cfg.Server.RefreshSeconds) * time.Second
+	retention := time.Duration(e.cfg.Store.RetentionDays) * 24 * time.Hour
+	go learnLoop(ctx, e.log, st, f, refresh, retention)
+	opts := web.Options{Events: st, Addr: addr, Demo: demo, AllowedOrigins: e.cfg.Server.AllowedOrigins, Log: e.log,
 		ShutdownGrace: time.Duration(e.cfg.Server.ShutdownGraceSeconds) * time.Second,
 		Identity: web.Identity{DepartmentHeader: e.cfg.Server.DepartmentHeader, GroupsHeader: e.cfg.Server.GroupsHeader,
 			SecretHeader: e.cfg.Server.SecretHeader, Secret: os.Getenv("KINWORD_PROXY_SECRET"), TrustLoopback: e.cfg.Server.TrustLoopback},
@@ -91,4 +101,17 @@ func (e *env) serve(ctx context.Context, addr string, demo bool) error {
 			fmt.Fprintln(e.stdout, "demo mode: visitors may pick a department persona; invented data only. Ctrl-C stops.")
 		}
 	})
+}
+
+// openStore opens the event store named by the configuration (relative
+// SQLite paths live in the data folder); KINWORD_STORE_DSN overrides.
+func (e *env) openStore(ctx context.Context) (*store.Store, error) {
+	dsn := e.cfg.Store.DSN
+	if v := os.Getenv("KINWORD_STORE_DSN"); v != "" {
+		dsn = v
+	}
+	if p, ok := strings.CutPrefix(dsn, "sqlite:"); ok && !filepath.IsAbs(p) {
+		dsn = "sqlite:" + filepath.Join(e.dataDir, p)
+	}
+	return store.Open(ctx, dsn)
 }

@@ -32,6 +32,16 @@ type Config struct {
 	Ingest   Ingest `toml:"ingest"`
 	Search   Search `toml:"search"`
 	Server   Server `toml:"server"`
+	Store    Store  `toml:"store"`
+}
+
+// Store configures the event store.
+type Store struct {
+	// DSN is "sqlite:PATH" or a PostgreSQL URL; default "sqlite:kinword.db"
+	// (relative paths inside the data folder). KINWORD_STORE_DSN overrides.
+	DSN string `toml:"dsn"`
+	// RetentionDays keeps raw events this long; default 180.
+	RetentionDays int `toml:"retention_days"`
 }
 
 // Server configures kinword serve.
@@ -169,6 +179,12 @@ func (c Config) Validate() error {
 	}
 	if c.Search.MaxQueryTerms < 1 || c.Search.MaxQueryTerms > 1024 {
 		bad("search.max_query_terms", "%d is outside 1..1024", c.Search.MaxQueryTerms)
+	}
+	if !strings.HasPrefix(c.Store.DSN, "sqlite:") && !strings.HasPrefix(c.Store.DSN, "postgres://") && !strings.HasPrefix(c.Store.DSN, "postgresql://") {
+		bad("store.dsn", "%q is neither sqlite:PATH nor a postgres:// URL", c.Store.DSN)
+	}
+	if c.Store.RetentionDays < 1 || c.Store.RetentionDays > 3650 {
+		bad("store.retention_days", "%d is outside 1..3650", c.Store.RetentionDays)
 	}
 	if strings.TrimSpace(c.Server.Addr) == "" {
 		bad("server.addr", "must not be empty")

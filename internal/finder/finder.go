@@ -13,6 +13,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"strings"
 	"sync/atomic"
 	"time"
 
@@ -20,6 +21,7 @@ import (
 
 	"kinword/internal/assoc"
 	"kinword/internal/index"
+	"kinword/internal/prefs"
 	"kinword/internal/rank"
 	"kinword/internal/suggest"
 	"kinword/internal/text"
@@ -84,7 +86,35 @@ type Finder struct {
 	opts  Options
 	table string // association table path ("" = none)
 	st    atomic.Pointer[state]
+	model atomic.Pointer[prefs.Model]
 	cache *gocache.Cache
+}
+
+// SetModel publishes a new learned model (nil switches learning off) and
+// drops cached suggestion lists, so learning shows within the refresh
+// interval.
+func (f *Finder) SetModel(m *prefs.Model) {
+	f.model.Store(m)
+	f.cache.Flush()
+}
+
+// CanonicalQuery is the key under which learning files a query: its
+// analysed terms and phrases, sorted, joined by single spaces ("" when the
+// text has no searchable words).
+func (f *Finder) CanonicalQuery(raw string) string {
+	q, err := index.ParseQuery(f.ix.Pipeline(), raw, f.opts.Limits)
+	if err != nil {
+		return ""
+	}
+	return canonical(q)
+}
+
+func canonical(q []index.QueryTerm) string {
+	keys := make([]string, len(q))
+	for i, t := range q {
+		keys[i] = t.Key
+	}
+	return strings.Join(keys, " ")
 }
 
 // Open opens the index in dataDir/index and the association table at

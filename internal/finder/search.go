@@ -6,6 +6,7 @@ import (
 
 	"kinword/internal/access"
 	"kinword/internal/index"
+	"kinword/internal/prefs"
 	"kinword/internal/suggest"
 )
 
@@ -100,7 +101,8 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 		return Response{}, err
 	}
 	out := Response{Query: req.Query, Accepted: accepted, Total: res.Total, Impression: newImpressionID(),
-		Results: []Result{}, Suggestions: f.suggestions(s, view, req.Viewer, q, accepted, res)}
+		Results: []Result{}}
+	out.Suggestions = f.suggestions(s, view, req.Viewer, q, accepted, res, out.Impression)
 	if req.WithResults {
 		hits := res.Hits
 		if len(hits) > f.opts.Results {
@@ -115,8 +117,8 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 
 // suggestions offers terms from the viewer's own top results, cached per
 // viewer scope, query and accepted terms.
-func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []index.QueryTerm, accepted []string, res index.Result) []suggest.Suggestion {
-	key := v.Key() + "\x00" + queryKey(q) + "\x00" + strings.Join(accepted, "|")
+func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []index.QueryTerm, accepted []string, res index.Result, impression string) []suggest.Suggestion {
+	key := v.Key() + "\x00" + canonical(q) + "\x00" + strings.Join(accepted, "|")
 	if c, ok := f.cache.Get(key); ok {
 		return c.([]suggest.Suggestion)
 	}
@@ -134,12 +136,56 @@ func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []in
 		}
 		fb = append(fb, suggest.Hit{Doc: h.Doc, Score: h.Score})
 	}
-	sugs := s.eng.Suggest(view, suggest.Request{Query: sq, Viewer: v, Feedback: fb, K: f.opts.Suggestions})
+	m := f.model.Load()
+	k := f.opts.Suggestions
+	if m != nil {
+		k *= 3 // a wider pool, so learning can lift a term the content score ranks lower
+	}
+	sugs := s.eng.Suggest(view, suggest.Request{Query: sq, Viewer: v, Feedback: fb, K: k})
+	if m != nil {
+		sugs = f.learnOrder(m, v.Department, canonical(q), sugs, impression)
+	}
 	if sugs == nil {
 		sugs = []suggest.Suggestion{}
 	}
 	f.cache.SetDefault(key, sugs)
 	return sugs
+}
+
+// learnOrder re-ranks a pool of suggestions with the department's learned
+// acceptance (smoothed toward the organisation-wide estimate while its own
+// evidence is thin) and keeps the configured number.
+func (f *Finder) learnOrder(m *prefs.Model, dept, query string, pool []suggest.Suggestion, impression string) []suggest.Suggestion {
+	cands := make([]prefs.Candidate, len(pool))
+	byTerm := make(map[string]suggest.Suggestion, len(pool))
+	for i, s := range pool {
+		cands[i] = prefs.Candidate{Term: s.Term, Content: s.Score}
+		byTerm[s.Term] = s
+	}
+	var out []suggest.Suggestion
+	for _, r := range m.Rank(dept, query, cands, impression) {
+		if len(out) == f.opts.Suggestions {
+			break
+		}
+		s := byTerm[r.Term]
+		s.Evidence.Parts = cloneParts(s.Evidence.Parts)
+		s.Evidence.Parts["learned"] = r.Learned
+		s.Evidence.Parts["content"] = r.Content
+		if src := r.Evidence.Source; src == "department" || src == "organisation" || src == "query-term" {
+			s.Evidence.Sources = append(append([]string(nil), s.Evidence.Sources...), "learned:"+src)
+		}
+		s.Score = r.Score
+		out = append(out, s)
+	}
+	return out
+}
+
+func cloneParts(p map[string]float64) map[string]float64 {
+	out := make(map[string]float64, len(p)+2)
+	for k, v := range p {
+		out[k] = v
+	}
+	return out
 }
 
 func (f *Finder) render(ctx context.Context, view *index.View, q []index.QueryTerm, hits []index.Hit) ([]Result, error) {
@@ -167,15 +213,6 @@ func (f *Finder) render(ctx context.Context, view *index.View, q []index.QueryTe
 			Snippet: sn.Text, Segments: segments(sn), Score: h.Score})
 	}
 	return out, nil
-}
-
-func queryKey(q []index.QueryTerm) string {
-	var b strings.Builder
-	for _, t := range q {
-		b.WriteString(t.Key)
-		b.WriteByte('|')
-	}
-	return b.String()
 }
 
 // cleanAccepted trims, de-duplicates and caps accepted keys.

@@ -16,6 +16,8 @@ type metrics struct {
 	latency     *prometheus.HistogramVec
 	impressions prometheus.Counter
 	accepted    prometheus.Counter
+	events      *prometheus.CounterVec
+	storeErrors prometheus.Counter
 }
 
 func newMetrics(reg *prometheus.Registry) *metrics {
@@ -25,8 +27,10 @@ func newMetrics(reg *prometheus.Registry) *metrics {
 			Buckets: []float64{.0005, .001, .0025, .005, .01, .025, .05, .1, .25, .5, 1, 2.5}}, []string{"route"}),
 		impressions: prometheus.NewCounter(prometheus.CounterOpts{Name: "kinword_suggestion_impressions_total", Help: "Suggested terms shown."}),
 		accepted:    prometheus.NewCounter(prometheus.CounterOpts{Name: "kinword_suggestion_accepts_total", Help: "Accepted terms searched with."}),
+		events:      prometheus.NewCounterVec(prometheus.CounterOpts{Name: "kinword_events_total", Help: "Interaction events committed, by kind."}, []string{"kind"}),
+		storeErrors: prometheus.NewCounter(prometheus.CounterOpts{Name: "kinword_store_errors_total", Help: "Event batches the store could not commit."}),
 	}
-	reg.MustRegister(m.requests, m.latency, m.impressions, m.accepted, prometheus.NewGoCollector(), prometheus.NewProcessCollector(prometheus.ProcessCollectorOpts{}))
+	reg.MustRegister(m.requests, m.latency, m.impressions, m.accepted, m.events, m.storeErrors, prometheus.NewGoCollector(), prometheus.NewProcessCollector(prometheus.ProcessCollectorOpts{}))
 	return m
 }
 

@@ -37,6 +37,7 @@ func (s *Server) routes() []Route {
 		{http.MethodGet, "/api/v1/lookup", RoleSearcher, "ranked results with snippets, suggestions and an impression id", s.lookup},
 		{http.MethodGet, "/api/v1/hints", RoleSearcher, "suggested terms alone, for an embedded widget", s.hints},
 		{http.MethodGet, "/api/v1/whoami", RoleSearcher, "the viewer the server sees, and demo personas", s.whoami},
+		{http.MethodPost, "/api/v1/signals", RoleSearcher, "record a batch of interaction events (202 once committed)", s.signals},
 		{http.MethodGet, "/api/v1/openapi.json", RolePublic, "the OpenAPI 3 description of this API", s.openapi},
 	}
 }

@@ -35,6 +35,9 @@ type Options struct {
 	// AllowedOrigins may call the API from other pages (CORS), for the
 	// embeddable widget; empty means same origin only.
 	AllowedOrigins []string
+	// Events records interaction events; nil means the server records none
+	// (the signals route answers 503).
+	Events EventSink
 	// ShutdownGrace bounds the drain of in-flight requests; default 10 s.
 	ShutdownGrace time.Duration
 	// Log receives request errors and lifecycle lines; default slog.Default().

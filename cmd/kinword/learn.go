@@ -1,0 +1,61 @@
+package main
+
+import (
+	"context"
+	"log/slog"
+	"time"
+
+	"kinword/internal/finder"
+	"kinword/internal/prefs"
+	"kinword/internal/store"
+)
+
+// toPrefs converts stored events into learning events. Result clicks are
+// not acceptances of a suggestion, so only impressions, accepts and
+// dismissals take part.
+func toPrefs(e store.Event) (prefs.Event, bool) {
+	switch e.Kind {
+	case store.KindImpression, store.KindAccept, store.KindDismiss:
+	default:
+		return prefs.Event{}, false
+	}
+	return prefs.Event{Kind: e.Kind, Time: e.Time, Session: e.Session, Department: e.Department,
+		Query: e.Query, Term: e.Term, Position: e.Position, Shown: e.Terms}, true
+}
+
+// learnOnce rebuilds the learned model from the store's events of the
+// retention window and publishes it to the finder.
+func learnOnce(ctx context.Context, st *store.Store, f *finder.Finder, retention time.Duration, opts prefs.Options) (int, error) {
+	now := time.Now().UTC()
+	b := prefs.NewBuilder(opts)
+	n := 0
+	err := st.Events(ctx, now.Add(-retention), func(e store.Event) error {
+		if pe, ok := toPrefs(e); ok {
+			b.Add(pe)
+			n++
+		}
+		return nil
+	})
+	if err != nil {
+		return 0, err
+	}
+	f.SetModel(b.Snapshot(now))
+	return n, nil
+}
+
+// learnLoop refreshes learning every interval until ctx ends; a store
+// failure keeps the previous model serving.
+func learnLoop(ctx context.Context, log *slog.Logger, st *store.Store, f *finder.Finder, every, retention time.Duration) {
+	t := time.NewTicker(every)
+	defer t.Stop()
+	for {
+		if _, err := learnOnce(ctx, st, f, retention, prefs.Options{}); err != nil && ctx.Err() == nil {
+			log.Error("learning refresh failed; the previous model keeps serving", "err", err)
+		}
+		select {
+		case <-ctx.Done():
+			return
+		case <-t.C:
+		}
+	}
+}

@@ -1,0 +1,139 @@
+package web
+
+import (
+	"context"
+	"crypto/rand"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"errors"
+	"io"
+	"mime"
+	"net/http"
+	"strings"
+	"time"
+
+	"github.com/gin-gonic/gin"
+
+	"kinword/internal/access"
+	"kinword/internal/store"
+)
+
+// EventSink is where interaction events go; *store.Store satisfies it.
+type EventSink interface {
+	Append(ctx context.Context, batch []store.Event) error
+}
+
+// maxBody bounds a request body (bytes).
+const maxBody = 1 << 20
+
+// signalIn is one event as the page sends it. The server adds the time,
+// the session, the department and the groups' hash itself.
+type signalIn struct {
+	ID         string   `json:"id"`
+	Impression string   `json:"impression"`
+	Kind       string   `json:"kind"`
+	Query      string   `json:"query"`
+	Term       string   `json:"term"`
+	Position   int      `json:"position"`
+	Doc        string   `json:"doc"`
+	Rank       int      `json:"rank"`
+	Terms      []string `json:"terms"`
+	Sources    []string `json:"sources"`
+}
+
+type signalsIn struct {
+	Events []signalIn `json:"events"`
+}
+
+// signals records a batch of interaction events and answers 202 only once
+// they are durably committed.
+func (s *Server) signals(c *gin.Context) {
+	if s.opts.Events == nil {
+		apiError(c, http.StatusServiceUnavailable, "no_store", "this server records no events")
+		return
+	}
+	if mt, _, err := mime.ParseMediaType(c.GetHeader("Content-Type")); err != nil || mt != "application/json" {
+		apiError(c, http.StatusUnsupportedMediaType, "content_type", "send application/json")
+		return
+	}
+	body, err := io.ReadAll(io.LimitReader(c.Request.Body, maxBody+1))
+	if err != nil {
+		apiError(c, http.StatusBadRequest, "bad_body", "could not read the body")
+		return
+	}
+	if len(body) > maxBody {
+		apiError(c, http.StatusRequestEntityTooLarge, "too_large", "the body exceeds 1 MiB")
+		return
+	}
+	dec := json.NewDecoder(strings.NewReader(string(body)))
+	dec.DisallowUnknownFields()
+	var in signalsIn
+	if err := dec.Decode(&in); err != nil || dec.More() {
+		msg := "malformed JSON"
+		if err != nil {
+			msg = "malformed JSON: " + err.Error()
+		}
+		apiError(c, http.StatusBadRequest, "malformed_json", msg)
+		return
+	}
+	if len(in.Events) == 0 || len(in.Events) > store.MaxBatch {
+		apiError(c, http.StatusBadRequest, "batch_size", "send 1 to 1000 events")
+		return
+	}
+	v := s.viewer(c)
+	sess := s.session(c)
+	now := time.Now().UTC()
+	batch := make([]store.Event, len(in.Events))
+	for i, e := range in.Events {
+		batch[i] = store.Event{ID: e.ID, Impression: e.Impression, Kind: e.Kind, Time: now, Session: sess,
+			Department: v.Department, GroupsHash: groupsHash(v), Query: s.f.CanonicalQuery(e.Query), Term: e.Term, Position: e.Position,
+			Doc: e.Doc, Rank: e.Rank, Terms: e.Terms, Sources: e.Sources}
+	}
+	err = s.opts.Events.Append(c.Request.Context(), batch)
+	switch {
+	case err == nil:
+		for _, e := range batch {
+			s.metrics.events.WithLabelValues(e.Kind).Inc()
+		}
+		c.JSON(http.StatusAccepted, gin.H{"accepted": len(batch)})
+	case errors.Is(err, store.ErrInvalid):
+		apiError(c, http.StatusBadRequest, "invalid_event", err.Error())
+	case errors.Is(err, store.ErrReplay):
+		apiError(c, http.StatusConflict, "replayed_event", err.Error())
+	case errors.Is(err, store.ErrUnknownImpression):
+		apiError(c, http.StatusUnprocessableEntity, "unknown_impression", err.Error())
+	case errors.Is(err, store.ErrUnavailable):
+		s.metrics.storeErrors.Inc()
+		c.Header("Retry-After", "5")
+		apiError(c, http.StatusServiceUnavailable, "store_unavailable", "events are not being recorded right now; retry later")
+	default:
+		s.metrics.storeErrors.Inc()
+		s.opts.Log.Error("signals", "err", err)
+		apiError(c, http.StatusInternalServerError, "internal", "the events were not recorded")
+	}
+}
+
+// session returns the visitor's random session id, which rotates daily; it
+// is the only visitor identifier Kinword keeps.
+func (s *Server) session(c *gin.Context) string {
+	day := time.Now().UTC().Format("20060102")
+	if v, err := c.Cookie("kw_session"); err == nil && strings.HasPrefix(v, day+".") && len(v) == len(day)+1+32 {
+		return v
+	}
+	var b [16]byte
+	_, _ = rand.Read(b[:])
+	v := day + "." + hex.EncodeToString(b[:])
+	c.SetSameSite(http.SameSiteStrictMode)
+	c.SetCookie("kw_session", v, 86400, "/", "", false, true)
+	return v
+}
+
+// groupsHash identifies a group set without storing the groups.
+func groupsHash(v access.Viewer) string {
+	if len(v.Groups) == 0 {
+		return ""
+	}
+	sum := sha256.Sum256([]byte(strings.Join(v.Groups, ",")))
+	return hex.EncodeToString(sum[:8])
+}
