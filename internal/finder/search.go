@@ -66,6 +66,9 @@ type Request struct {
 	Viewer access.Viewer
 	// WithResults false returns suggestions only (for a widget).
 	WithResults bool
+	// Impression, when set, is used as the impression id instead of a
+	// random one (simulations, for reproducible exploration).
+	Impression string
 }
 
 // Search runs a query for a viewer: BM25 over readable documents, the
@@ -100,7 +103,11 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 	if err != nil {
 		return Response{}, err
 	}
-	out := Response{Query: req.Query, Accepted: accepted, Total: res.Total, Impression: newImpressionID(),
+	imp := req.Impression
+	if imp == "" {
+		imp = newImpressionID()
+	}
+	out := Response{Query: req.Query, Accepted: accepted, Total: res.Total, Impression: imp,
 		Results: []Result{}}
 	out.Suggestions = f.suggestions(s, view, req.Viewer, q, accepted, res, out.Impression)
 	if req.WithResults {
