@@ -5,9 +5,10 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"runtime"
+	"runtime/debug"
 	"time"
 
-	"kinword/internal/access"
 	"kinword/internal/assoc"
 	"kinword/internal/index"
 	"kinword/internal/progress"
@@ -58,7 +59,7 @@ func runMine(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	defer ix.Close()
+	defer ix.Close() // a second Close after the explicit one below is harmless
 	if *col != "" {
 		if _, err := os.Stat(filepath.Join(*col, "docs.jsonl")); err == nil {
 			if _, err := loadCollectionDocs(ctx, e, ix, filepath.Join(*col, "docs.jsonl")); err != nil {
@@ -71,13 +72,33 @@ func runMine(ctx context.Context, e *env, args []string) error {
 	if ix.Len() == 0 {
 		return fmt.Errorf("mine: the index in %s is empty: ingest documents first (or pass --collection)", e.dataDir)
 	}
-	corpus := indexCorpus{all: ix.View(access.Viewer{Groups: ix.Groups()}), open: ix.View(access.Anonymous)}
+	// Mine from the forward file on disk, a document at a time, so the
+	// memory budget covers the whole process rather than the counts on
+	// top of an index held in memory.
+	if err := ix.Close(); err != nil {
+		return err
+	}
+	ff, err := index.OpenForward(ix.Dir())
+	if err != nil {
+		return err
+	}
+	defer ff.Close()
+	corpus := &fileCorpus{ff: ff}
+	total := int64(*budget) << 20
+	runtime.GC()
+	var ms runtime.MemStats
+	runtime.ReadMemStats(&ms)
+	base := int64(ms.HeapAlloc) + 64<<20 // dictionaries, offsets, runtime and slack
+	if total-base < 16<<20 {
+		return usagef("--budget %d MiB is below what the dictionaries need (%d MiB)", *budget, (base>>20)+16)
+	}
+	debug.SetMemoryLimit(total)
 	bar := progress.New(e.stderr, "mine", 0, progress.Options{Unit: "units", Quiet: e.json})
 	phase := ""
 	start := time.Now()
 	tbl, err := assoc.Mine(ctx, corpus, assoc.Options{
 		Window: *window, MinDF: *minDF, TopK: *topK,
-		MemoryBudget: int64(*budget) << 20, TempDir: e.dataDir,
+		MemoryBudget: total - base, TempDir: e.dataDir,
 		Progress: func(p string, done, total int) {
 			if p != phase {
 				phase = p
@@ -87,6 +108,9 @@ func runMine(ctx context.Context, e *env, args []string) error {
 		},
 	})
 	bar.Finish()
+	if err == nil {
+		err = corpus.err
+	}
 	if err != nil {
 		return err // the previous table, if any, is untouched
 	}
@@ -102,6 +126,36 @@ func runMine(ctx context.Context, e *env, args []string) error {
 			"pair_increments": rs.PairIncrements, "pairs_per_second": float64(rs.PairIncrements) / el})
 	}
 	fmt.Fprintf(e.stdout, "mined %d documents in %.1f s: %s (%.1f MiB, %d terms, %d phrases, %d scopes, %d spills)\n",
-		ix.Len(), el, e.tableFile(), float64(st.Size())/(1<<20), info.Terms, info.Phrases, len(info.Scopes), rs.Spills)
+		ff.NumDocs(), el, e.tableFile(), float64(st.Size())/(1<<20), info.Terms, info.Phrases, len(info.Scopes), rs.Spills)
 	return nil
 }
+
+// fileCorpus shows the forward file to the miner. The first read error is
+// kept and reported after Mine (the Corpus interface has no error return).
+type fileCorpus struct {
+	ff  *index.ForwardFile
+	err error
+}
+
+func (c *fileCorpus) NumDocs() int { return c.ff.NumDocs() }
+func (c *fileCorpus) Doc(i int) assoc.DocTerms {
+	d, err := c.ff.Doc(i)
+	if err != nil {
+		if c.err == nil {
+			c.err = err
+		}
+		return assoc.DocTerms{}
+	}
+	return assoc.DocTerms{Tokens: d.Tokens, Breaks: d.Breaks, Gaps: d.Gaps, Groups: d.Groups}
+}
+func (c *fileCorpus) DocSurfaces(i int) []uint32 {
+	d, err := c.ff.Doc(i)
+	if err != nil {
+		return nil
+	}
+	return d.Surf
+}
+func (c *fileCorpus) Surface(id uint32) string { return c.ff.Surface(id) }
+func (c *fileCorpus) NumTerms() int            { return c.ff.NumTerms() }
+func (c *fileCorpus) Term(id uint32) string    { return c.ff.Term(id) }
+func (c *fileCorpus) Display(id uint32) string { return c.ff.OpenDisplay(c.ff.Term(id)) }

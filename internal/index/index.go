@@ -64,6 +64,8 @@ type Index struct {
 	fwd   *forward   // guarded by wmu
 	dirty bool       // guarded by wmu: uncommitted writes
 	snap  atomic.Pointer[snapshot]
+
+	closeOnce sync.Once
 }
 
 // Open opens or creates the index in dir (dir/bleve and dir/forward.kwf).
@@ -149,12 +151,15 @@ func (ix *Index) Pipeline() *text.Pipeline { return ix.p }
 func (ix *Index) Len() int { return len(ix.snap.Load().docs) }
 
 // Close commits nothing: uncommitted writes are left for the next Open to
-// reconcile. Call Commit first.
+// reconcile. Call Commit first. Closing twice is harmless.
 func (ix *Index) Close() error {
-	if err := ix.b.Close(); err != nil {
-		return fmt.Errorf("index: close: %w", err)
-	}
-	return nil
+	var err error
+	ix.closeOnce.Do(func() {
+		if e := ix.b.Close(); e != nil {
+			err = fmt.Errorf("index: close: %w", e)
+		}
+	})
+	return err
 }
 
 // Groups returns every access group that restricts a document, sorted.
