@@ -45,7 +45,7 @@ func (c indexCorpus) Display(id uint32) string   { return c.open.Display(c.all.T
 func runMine(ctx context.Context, e *env, args []string) error {
 	fs, c := newFlags("mine", e.stderr)
 	col := fs.String("collection", "", "first ingest a collection folder (docs.jsonl or docs/) into the data folder")
-	budget := fs.Int("budget", 1024, "memory budget for pair counts, MiB; beyond it sorted runs spill to disk")
+	budget := fs.Int("budget", 1024, "memory budget of the whole mine, MiB; counts beyond it spill to sorted runs on disk (same result)")
 	window := fs.Int("window", assoc.DefaultWindow, "co-occurrence window, ± tokens")
 	minDF := fs.Int("min-df", assoc.DefaultMinDF, "minimum document frequency of a mined term")
 	topK := fs.Int("top-k", assoc.DefaultTopK, "neighbours kept per term and scope")
@@ -55,30 +55,11 @@ func runMine(ctx context.Context, e *env, args []string) error {
 	if *budget < 16 {
 		return usagef("--budget must be at least 16 MiB")
 	}
-	ix, err := e.openIndex(ctx)
+	dir, err := prepareMine(ctx, e, *col)
 	if err != nil {
 		return err
 	}
-	defer ix.Close() // a second Close after the explicit one below is harmless
-	if *col != "" {
-		if _, err := os.Stat(filepath.Join(*col, "docs.jsonl")); err == nil {
-			if _, err := loadCollectionDocs(ctx, e, ix, filepath.Join(*col, "docs.jsonl")); err != nil {
-				return err
-			}
-		} else if _, err := syncPaths(ctx, e, ix, []string{filepath.Join(*col, "docs")}); err != nil {
-			return err
-		}
-	}
-	if ix.Len() == 0 {
-		return fmt.Errorf("mine: the index in %s is empty: ingest documents first (or pass --collection)", e.dataDir)
-	}
-	// Mine from the forward file on disk, a document at a time, so the
-	// memory budget covers the whole process rather than the counts on
-	// top of an index held in memory.
-	if err := ix.Close(); err != nil {
-		return err
-	}
-	ff, err := index.OpenForward(ix.Dir())
+	ff, err := index.OpenForward(dir)
 	if err != nil {
 		return err
 	}
@@ -159,3 +140,28 @@ func (c *fileCorpus) Surface(id uint32) string { return c.ff.Surface(id) }
 func (c *fileCorpus) NumTerms() int            { return c.ff.NumTerms() }
 func (c *fileCorpus) Term(id uint32) string    { return c.ff.Term(id) }
 func (c *fileCorpus) Display(id uint32) string { return c.ff.OpenDisplay(c.ff.Term(id)) }
+
+// prepareMine ingests a collection first if asked, checks the index is not
+// empty, and closes it, so that nothing of the in-memory index stays
+// reachable while mining streams the forward file. It returns the index
+// folder.
+func prepareMine(ctx context.Context, e *env, col string) (string, error) {
+	ix, err := e.openIndex(ctx)
+	if err != nil {
+		return "", err
+	}
+	defer ix.Close()
+	if col != "" {
+		if _, err := os.Stat(filepath.Join(col, "docs.jsonl")); err == nil {
+			if _, err := loadCollectionDocs(ctx, e, ix, filepath.Join(col, "docs.jsonl")); err != nil {
+				return "", err
+			}
+		} else if _, err := syncPaths(ctx, e, ix, []string{filepath.Join(col, "docs")}); err != nil {
+			return "", err
+		}
+	}
+	if ix.Len() == 0 {
+		return "", fmt.Errorf("mine: the index in %s is empty: ingest documents first (or pass --collection)", e.dataDir)
+	}
+	return ix.Dir(), ix.Close()
+}
