@@ -146,7 +146,7 @@ func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []in
 	m := f.model.Load()
 	k := f.opts.Suggestions
 	if m != nil {
-		k *= 3 // a wider pool, so learning can lift a term the content score ranks lower
+		k *= 6 // a wider pool, so learning can lift a term the content score ranks lower
 	}
 	sugs := s.eng.Suggest(view, suggest.Request{Query: sq, Viewer: v, Feedback: fb, K: k})
 	if m != nil {
