@@ -143,6 +143,17 @@ func TestLoadRejectsCraftedContent(t *testing.T) {
 	}
 }
 
+// sections returns every section's tag and payload, in file order.
+func (t *Table) sections() ([]string, [][]byte) {
+	var tags []string
+	var payloads [][]byte
+	for i := range t.numSections() {
+		tag, p := t.section(i)
+		tags, payloads = append(tags, tag), append(payloads, p)
+	}
+	return tags, payloads
+}
+
 func fuzzSeedTable(f *testing.F) *Table {
 	tb, err := Mine(context.Background(), scopedCorpus(true), Options{TopK: 3, MinPhraseCount: 3})
 	if err != nil {

@@ -56,18 +56,28 @@ func benchMineOn(b *testing.B, c *MemCorpus, opts Options) {
 	b.ReportAllocs()
 	b.ResetTimer()
 	var st mineStats
+	var tb *Table
 	start := time.Now()
 	for range b.N {
-		tb, err := Mine(context.Background(), c, opts)
+		var err error
+		tb, err = Mine(context.Background(), c, opts)
 		if err != nil {
 			b.Fatal(err)
 		}
 		st = tb.stats
 	}
 	sec := time.Since(start).Seconds()
+	b.StopTimer()
 	b.ReportMetric(float64(st.toks)*float64(b.N)/sec, "tokens/s")
 	b.ReportMetric(float64(st.incr)*float64(b.N)/sec, "pairs/s")
 	b.ReportMetric(float64(st.spills), "spills")
+	path := filepath.Join(b.TempDir(), "bench.kwassoc")
+	if err := tb.Write(path); err != nil {
+		b.Fatal(err)
+	}
+	if fi, err := os.Stat(path); err == nil {
+		b.ReportMetric(float64(fi.Size()), "artifact-bytes")
+	}
 }
 
 // BenchmarkMine times a whole Mine (scan, phrases, vocabulary, pair

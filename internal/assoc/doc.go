@@ -32,6 +32,12 @@
 //     documents together finds exactly the open phrases, a group scope
 //     equals mining the group's documents plus the open ones as one corpus.
 //
+// Group scopes mostly repeat the open scope, so a group scope stores only
+// a delta against it, in memory and in the artifact: the terms whose
+// frequencies or neighbour list differ from the open scope's, with list
+// entries that equal an open entry stored as a reference to it. Every
+// query answers exactly as if each scope were stored in full.
+//
 // Counting runs in bounded memory: pair counts live in compact open-addressing
 // tables that spill sorted runs to temporary files when they outgrow
 // Options.MemoryBudget, and the runs are k-way merged, giving exactly the

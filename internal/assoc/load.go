@@ -200,31 +200,37 @@ func (t *Table) decodeScope(b []byte, idx int, name string) (*scopeTable, error)
 	}
 	st := &scopeTable{name: name, docs: d.u32(), units: d.u64(), pairs: d.u64()}
 	n := uint64(t.numTerms())
-	if 4*(4*n+1) > uint64(len(d.b)) {
-		return nil, fmt.Errorf("%w: scope %q too short for %d terms", ErrCorrupt, name, n)
-	}
-	st.udf, st.df, st.tf, st.off = d.u32s(n), d.u32s(n), d.u32s(n), d.u32s(n+1)
-	if d.err != nil {
-		return nil, d.err
-	}
-	if err := offsets(st.off, uint64(len(d.b))/16, "neighbour"); err != nil {
+	if idx == 0 {
+		if 4*(4*n+1) > uint64(len(d.b)) {
+			return nil, fmt.Errorf("%w: scope %q too short for %d terms", ErrCorrupt, name, n)
+		}
+		st.udf, st.df, st.tf, st.off = d.u32s(n), d.u32s(n), d.u32s(n), d.u32s(n+1)
+		if d.err != nil {
+			return nil, d.err
+		}
+		if err := offsets(st.off, uint64(len(d.b))/16, "neighbour"); err != nil {
+			return nil, err
+		}
+		m := uint64(st.off[n])
+		st.nb, st.k11, st.win, st.sup = d.u32s(m), d.u32s(m), d.u32s(m), d.u32s(m)
+	} else if err := t.decodeDelta(d, st); err != nil {
 		return nil, err
 	}
-	m := uint64(st.off[n])
-	st.nb, st.k11, st.win, st.sup = d.u32s(m), d.u32s(m), d.u32s(m), d.u32s(m)
 	if err := d.end("scope " + name); err != nil {
 		return nil, err
 	}
 	for a := uint32(0); a < uint32(n); a++ {
-		if uint64(st.udf[a]) > st.units || (st.df[a] == 0 && (st.udf[a] != 0 || st.off[a] != st.off[a+1])) {
+		sp := st.entries(a)
+		if uint64(st.udf[a]) > st.units || (st.df[a] == 0 && (st.udf[a] != 0 || sp.n != 0)) {
 			return nil, fmt.Errorf("%w: scope %q term %d has inconsistent counts", ErrCorrupt, name, a)
 		}
-		for e := st.off[a]; e < st.off[a+1]; e++ {
-			b := st.nb[e]
+		for i := range sp.n {
+			src, e := sp.at(i)
+			b := src.nb[e]
 			if uint64(b) >= n || b == a || st.df[b] == 0 {
 				return nil, fmt.Errorf("%w: scope %q term %d has a neighbour outside the scope", ErrCorrupt, name, a)
 			}
-			k, ua, ub := uint64(st.k11[e]), uint64(st.udf[a]), uint64(st.udf[b])
+			k, ua, ub := uint64(src.k11[e]), uint64(st.udf[a]), uint64(st.udf[b])
 			if k == 0 || k > ua || k > ub || ua+ub-k > st.units {
 				return nil, fmt.Errorf("%w: scope %q pair (%d, %d) has impossible counts", ErrCorrupt, name, a, b)
 			}

@@ -29,6 +29,13 @@ type miner struct {
 // the package documentation). On cancellation Mine returns promptly with
 // an error wrapping ctx.Err(); spill files are always removed.
 func Mine(ctx context.Context, c Corpus, opts Options) (*Table, error) {
+	return mine(ctx, c, opts, false)
+}
+
+// mine is Mine; with full set (tests only) every group scope keeps all its
+// neighbour lists instead of a delta against the open scope. Such a table
+// answers every query exactly like the delta one but cannot be written.
+func mine(ctx context.Context, c Corpus, opts Options, full bool) (*Table, error) {
 	o := opts.resolved()
 	sc, err := scanCorpus(ctx, c, o.Progress)
 	if err != nil {
@@ -112,7 +119,10 @@ func Mine(ctx context.Context, c Corpus, opts Options) (*Table, error) {
 				udf[l] += n
 			}
 		}
-		if err := m.rankScope(ctx, base, own, udf, units, st); err != nil {
+		if s > 0 && !full {
+			st.base = t.scopes[0] // ranked first; the group keeps a delta
+		}
+		if err := m.rankScope(ctx, base, own, udf, units, st, s == nScopes-1); err != nil {
 			return nil, err
 		}
 		t.scopes = append(t.scopes, st)

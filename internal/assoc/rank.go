@@ -66,9 +66,12 @@ func (t *topK) offer(term uint32, c cand) {
 // the store's files and own, the group's own runs; both empty for the open
 // scope), keeps pairs of terms counted in the scope (st.df > 0) with enough
 // supporting documents whose passage co-occurrence exceeds chance, and
-// builds every term's neighbour list, best first. udf and n are the
-// scope's passage frequencies (zero outside the scope) and passages.
-func (m *miner) rankScope(ctx context.Context, base *baseRuns, own [][]slot, udf []uint32, n int64, st *scopeTable) error {
+// builds every term's neighbour list, best first: all of them for the open
+// scope, the delta against the open scope (st.base) for a group scope.
+// udf and n are the scope's passage frequencies (zero outside the scope)
+// and passages. With last set no scope follows, and the base runs are
+// released as soon as they are merged, before the lists are built.
+func (m *miner) rankScope(ctx context.Context, base *baseRuns, own [][]slot, udf []uint32, n int64, st *scopeTable, last bool) error {
 	nLocal := len(udf)
 	tk := &topK{k: m.o.TopK, heaps: make([][]cand, nLocal)}
 	minSup := uint32(m.o.MinSupportDocs)
@@ -99,18 +102,12 @@ func (m *miner) rankScope(ctx context.Context, base *baseRuns, own [][]slot, udf
 	if err != nil {
 		return err
 	}
+	if last {
+		base.release()
+	}
 	st.units = uint64(n)
 	st.udf = udf
-	st.off = make([]uint32, nLocal+1)
-	total := 0
 	for _, h := range tk.heaps {
-		total += len(h)
-	}
-	st.nb = make([]uint32, 0, total)
-	st.k11 = make([]uint32, 0, total)
-	st.win = make([]uint32, 0, total)
-	st.sup = make([]uint32, 0, total)
-	for t, h := range tk.heaps {
 		slices.SortFunc(h, func(x, y cand) int {
 			if worse(y, x) {
 				return -1
@@ -120,13 +117,28 @@ func (m *miner) rankScope(ctx context.Context, base *baseRuns, own [][]slot, udf
 			}
 			return 0
 		})
+	}
+	if st.base != nil {
+		st.addDelta(tk.heaps)
+		return nil
+	}
+	total := 0
+	for _, h := range tk.heaps {
+		total += len(h)
+	}
+	st.off = make([]uint32, 1, nLocal+1)
+	st.nb = make([]uint32, 0, total)
+	st.k11 = make([]uint32, 0, total)
+	st.win = make([]uint32, 0, total)
+	st.sup = make([]uint32, 0, total)
+	for t, h := range tk.heaps {
 		for _, c := range h {
 			st.nb = append(st.nb, c.nb)
 			st.k11 = append(st.k11, c.k11)
 			st.win = append(st.win, c.win)
 			st.sup = append(st.sup, c.sp)
 		}
-		st.off[t+1] = uint32(len(st.nb))
+		st.off = append(st.off, uint32(len(st.nb)))
 		tk.heaps[t] = nil
 	}
 	return nil

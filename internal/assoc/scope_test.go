@@ -183,8 +183,10 @@ func TestMergeTakesBestScope(t *testing.T) {
 	scores := map[string]map[string]float64{}
 	for _, s := range []int{0, 2} {
 		st := tb.scopes[s]
-		for e := st.off[id]; e < st.off[id+1]; e++ {
-			n := tb.neighbour(st, id, e, MeasureLLR)
+		sp := st.entries(id)
+		for i := range sp.n {
+			src, e := sp.at(i)
+			n := tb.neighbour(st, src, id, e, MeasureLLR)
 			if scores[n.Term] == nil {
 				scores[n.Term] = map[string]float64{}
 			}

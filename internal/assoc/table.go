@@ -49,23 +49,6 @@ const maxPhraseCache = 1 << 14
 
 type phraseCacheKey struct{ stem, scopes string }
 
-// scopeTable is one scope's counts. Per-term arrays are indexed by table
-// ID; df == 0 means the term is not part of the scope.
-type scopeTable struct {
-	name  string
-	docs  uint32
-	units uint64
-	pairs uint64 // pairs that passed support and chance filters
-	udf   []uint32
-	df    []uint32
-	tf    []uint32
-	off   []uint32 // neighbour list of t is [off[t], off[t+1])
-	nb    []uint32
-	k11   []uint32
-	win   []uint32
-	sup   []uint32
-}
-
 type mineStats struct {
 	spills int
 	incr   int64
@@ -177,8 +160,10 @@ func (t *Table) Neighbours(v access.Viewer, id uint32, measure Measure, k int) [
 		if st.df[id] == 0 {
 			continue
 		}
-		for e := st.off[id]; e < st.off[id+1]; e++ {
-			nb := t.neighbour(st, id, e, measure)
+		sp := st.entries(id)
+		for i := range sp.n {
+			src, e := sp.at(i)
+			nb := t.neighbour(st, src, id, e, measure)
 			if i, ok := at[nb.ID]; ok {
 				if nb.Score > out[i].Score {
 					out[i] = nb
@@ -201,16 +186,19 @@ func (t *Table) Neighbours(v access.Viewer, id uint32, measure Measure, k int) [
 	return out
 }
 
-func (t *Table) neighbour(st *scopeTable, id, e uint32, m Measure) Neighbour {
-	nb := st.nb[e]
-	k11, na, nbn, n := int64(st.k11[e]), int64(st.udf[id]), int64(st.udf[nb]), int64(st.units)
+// neighbour builds entry e of term id's list in scope st; src holds the
+// entry's columns (see scopeTable.entries). Frequencies, passages and the
+// scope name are st's.
+func (t *Table) neighbour(st, src *scopeTable, id, e uint32, m Measure) Neighbour {
+	nb := src.nb[e]
+	k11, na, nbn, n := int64(src.k11[e]), int64(st.udf[id]), int64(st.udf[nb]), int64(st.units)
 	c := NewContingency(k11, na, nbn, n)
 	return Neighbour{
 		ID: nb, Term: t.term(nb), Display: t.display(nb), Score: c.Score(m),
 		LLR: c.SignedG2(), PMI: c.PMI(), NPMI: c.NPMI(), Chi2: c.Chi2(), Dice: c.Dice(),
 		CondProb: c.CondProb(), TScore: c.TScore(),
 		K11: int(k11), K12: int(na - k11), K21: int(nbn - k11), K22: int(n - na - nbn + k11),
-		Window: int(st.win[e]), Docs: int(st.sup[e]), Scope: st.name,
+		Window: int(src.win[e]), Docs: int(src.sup[e]), Scope: st.name,
 	}
 }
 
@@ -368,7 +356,7 @@ func (t *Table) Info() Info {
 		}
 	}
 	for _, st := range t.scopes {
-		si := ScopeInfo{Name: st.name, Docs: int(st.docs), Passages: int64(st.units), Pairs: int64(st.pairs), Neighbours: len(st.nb)}
+		si := ScopeInfo{Name: st.name, Docs: int(st.docs), Passages: int64(st.units), Pairs: int64(st.pairs), Neighbours: st.numNeighbours()}
 		for _, df := range st.df {
 			if df > 0 {
 				si.Terms++

@@ -50,8 +50,10 @@ func viewScope(tb *Table, s int) scopeView {
 		}
 		v.terms[tb.term(id)] = [3]uint32{st.df[id], st.tf[id], st.udf[id]}
 		var ns []Neighbour
-		for e := st.off[id]; e < st.off[id+1]; e++ {
-			n := tb.neighbour(st, id, e, MeasureLLR)
+		sp := st.entries(id)
+		for i := range sp.n {
+			src, e := sp.at(i)
+			n := tb.neighbour(st, src, id, e, MeasureLLR)
 			n.ID, n.Scope, n.Display = 0, "", ""
 			ns = append(ns, n)
 		}
