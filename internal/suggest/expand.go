@@ -102,12 +102,11 @@ func (e *Engine) AutoExpand(c Corpus, req Request) []QueryTerm {
 		if len(exp) == e.opt.AutoTerms {
 			break
 		}
-		cd := &cand{key: c.Term(f.ID), id: f.ID, hasID: true}
-		cd.words = []string{cd.key}
-		if e.reject(r, cd) != "" || e.hasStopword(strings.ToLower(c.Display(cd.key))) {
-			continue
-		}
-		exp = append(exp, QueryTerm{cd.key, f.Weight})
+		// Automatic expansion keeps the model's terms as they are: the
+		// display filters (generic words, frequent terms, the query's own
+		// stems) serve a searcher choosing terms, and removing them from a
+		// weighted query measurably lowers MAP (see the eval reports).
+		exp = append(exp, QueryTerm{c.Term(f.ID), f.Weight})
 	}
 	if len(exp) == 0 {
 		return out
@@ -121,7 +120,18 @@ func (e *Engine) AutoExpand(c Corpus, req Request) []QueryTerm {
 	default:
 		scale = (1 - e.origCoef) / e.origCoef * msum / mmax
 	}
+	// A query term the model also proposes gets the two parts summed, as in
+	// the model's own interpolated query.
+	at := make(map[string]int, len(out))
+	for i, q := range out {
+		at[q.Key] = i
+	}
 	for _, t := range exp {
+		if i, ok := at[t.Key]; ok {
+			out[i].Weight += t.Weight * scale
+			continue
+		}
+		at[t.Key] = len(out)
 		out = append(out, QueryTerm{t.Key, t.Weight * scale})
 	}
 	return out
