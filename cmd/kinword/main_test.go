@@ -4,26 +4,14 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"kinword/internal/testenv"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 )
 
-func collections(t *testing.T) string {
-	t.Helper()
-	dir := os.Getenv("KINWORD_COLLECTIONS")
-	if dir == "" {
-		dir = filepath.Join("..", "..", "..", "shared", "collections")
-	}
-	if _, err := os.Stat(dir); err != nil {
-		if os.Getenv("CI") == "true" {
-			t.Fatalf("test collections missing at %s in CI: %v", dir, err)
-		}
-		t.Skipf("test collections not found at %s (set KINWORD_COLLECTIONS): %v", dir, err)
-	}
-	return dir
-}
+func collections(t *testing.T) string { return testenv.Collections(t) }
 
 func runCLI(t *testing.T, args ...string) (int, string, string) {
 	t.Helper()

@@ -2,6 +2,7 @@ package eval
 
 import (
 	"errors"
+	"kinword/internal/testenv"
 	"os"
 	"path/filepath"
 	"slices"
@@ -61,26 +62,7 @@ func TestLoadCollectionErrors(t *testing.T) {
 	}
 }
 
-// collectionsDir is $KINWORD_COLLECTIONS or the shared folder three levels
-// above this package (go test runs in the package directory).
-func collectionsDir(t *testing.T) string {
-	t.Helper()
-	dir := os.Getenv("KINWORD_COLLECTIONS")
-	if dir == "" {
-		wd, err := os.Getwd()
-		if err != nil {
-			t.Fatal(err)
-		}
-		dir = filepath.Join(wd, "..", "..", "..", "shared", "collections")
-	}
-	if _, err := os.Stat(dir); err != nil {
-		if os.Getenv("CI") == "true" {
-			t.Fatalf("test collections not found at %s in CI (../shared/collections must be beside the clone): %v", dir, err)
-		}
-		t.Skipf("test collections not found at %s (set KINWORD_COLLECTIONS): %v", dir, err)
-	}
-	return dir
-}
+func collectionsDir(t *testing.T) string { return testenv.Collections(t) }
 
 // Counts from the collections README (shared/collections/README.md), which
 // in turn describes the public Cranfield 1400 and CISI collections.

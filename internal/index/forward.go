@@ -47,25 +47,20 @@ func newForward() *forward {
 	return &forward{termID: map[string]uint32{}, formID: map[string]uint32{}, docs: map[string]*fwdDoc{}, surf: map[string]*text.Surfaces{}}
 }
 
-func (f *forward) intern(stem string) uint32 {
-	if id, ok := f.termID[stem]; ok {
+// internIn returns s's ID in an append-only dictionary, adding it if new.
+func internIn(list *[]string, ids map[string]uint32, s string) uint32 {
+	if id, ok := ids[s]; ok {
 		return id
 	}
-	id := uint32(len(f.terms))
-	f.terms = append(f.terms, stem)
-	f.termID[stem] = id
+	id := uint32(len(*list))
+	*list = append(*list, s)
+	ids[s] = id
 	return id
 }
 
-func (f *forward) internForm(w string) uint32 {
-	if id, ok := f.formID[w]; ok {
-		return id
-	}
-	id := uint32(len(f.forms))
-	f.forms = append(f.forms, w)
-	f.formID[w] = id
-	return id
-}
+func (f *forward) intern(stem string) uint32 { return internIn(&f.terms, f.termID, stem) }
+
+func (f *forward) internForm(w string) uint32 { return internIn(&f.forms, f.formID, w) }
 
 func (f *forward) surfaces(scope string) *text.Surfaces {
 	s := f.surf[scope]

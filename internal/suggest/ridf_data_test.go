@@ -3,27 +3,13 @@ package suggest
 import (
 	"bufio"
 	"encoding/json"
+	"kinword/internal/testenv"
 	"os"
 	"path/filepath"
 	"testing"
 )
 
-// collections returns the folder of the public test collections, skipping
-// the test when it is absent (failing in CI, where it must be present).
-func collections(t *testing.T) string {
-	t.Helper()
-	dir := os.Getenv("KINWORD_COLLECTIONS")
-	if dir == "" {
-		dir = filepath.Join("..", "..", "..", "shared", "collections")
-	}
-	if _, err := os.Stat(dir); err != nil {
-		if os.Getenv("CI") == "true" {
-			t.Fatalf("test collections missing at %s in CI: %v", dir, err)
-		}
-		t.Skipf("test collections not found at %s (set KINWORD_COLLECTIONS): %v", dir, err)
-	}
-	return dir
-}
+func collections(t *testing.T) string { return testenv.Collections(t) }
 
 // collStats are document and collection frequencies of a test collection
 // analysed by the shared text pipeline.

@@ -2,6 +2,7 @@ package text
 
 import (
 	"bufio"
+	"kinword/internal/testenv"
 	"os"
 	"path/filepath"
 	"testing"
@@ -9,23 +10,8 @@ import (
 
 // snowballData locates the Snowball project's English reference vocabulary,
 // as shipped by Debian's snowball-data package (voc.txt: input words,
-// output.txt: the reference stems, line by line). KINWORD_SNOWBALL_DATA
-// overrides the folder. In CI (CI=true) a missing folder is a failure, not a
-// skip, because .ci/run installs the package.
-func snowballData(t *testing.T) string {
-	t.Helper()
-	dir := os.Getenv("KINWORD_SNOWBALL_DATA")
-	if dir == "" {
-		dir = "/usr/share/snowball/data/english"
-	}
-	if _, err := os.Stat(filepath.Join(dir, "voc.txt")); err != nil {
-		if os.Getenv("CI") == "true" {
-			t.Fatalf("snowball reference vocabulary missing at %s (apt-get install snowball-data): %v", dir, err)
-		}
-		t.Skipf("snowball reference vocabulary not found at %s: apt-get install snowball-data (or set KINWORD_SNOWBALL_DATA)", dir)
-	}
-	return dir
-}
+// output.txt: the reference stems, line by line).
+func snowballData(t *testing.T) string { return testenv.Snowball(t) }
 
 func readLines(t *testing.T, path string) []string {
 	t.Helper()
