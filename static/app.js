@@ -1,7 +1,7 @@
 // Kinword search page: plain script, no build step.
 (function () {
   "use strict";
-  var state = { q: "", accepted: [], dismissed: {}, persona: "", impression: "" };
+  var state = { q: "", accepted: [], dismissed: {}, persona: "", impression: "", useful: {} };
 
   function eventID() {
     var b = new Uint8Array(16);
@@ -116,6 +116,18 @@
       });
       li.appendChild(a);
       li.appendChild(text("span", r.department, "kw-dept"));
+      var u = text("button", state.useful[r.id] ? "Marked useful" : "Useful", "kw-useful");
+      u.type = "button";
+      u.setAttribute("aria-pressed", state.useful[r.id] ? "true" : "false");
+      u.setAttribute("aria-label", "Mark " + r.title + " as useful; results and related terms will lean towards it");
+      u.addEventListener("click", function () {
+        if (state.useful[r.id]) { delete state.useful[r.id]; } else {
+          state.useful[r.id] = true;
+          signal({ kind: "mark_useful", doc: r.id, rank: r.rank });
+        }
+        run();
+      });
+      li.appendChild(u);
       li.appendChild(marked(r.segments));
       res.appendChild(li);
     });
@@ -124,7 +136,8 @@
   function run() {
     if (!state.q) { return; }
     el("status").textContent = "Searching\u2026";
-    api("/api/v1/lookup", { q: state.q, accepted: state.accepted.map(function (a) { return a.term; }).join("|") })
+    api("/api/v1/lookup", { q: state.q, accepted: state.accepted.map(function (a) { return a.term; }).join("|"),
+      useful: Object.keys(state.useful).join("|") })
       .then(render)
       .catch(function (err) { el("status").textContent = "Search failed: " + err.message; });
   }
@@ -132,7 +145,7 @@
   el("search").addEventListener("submit", function (e) {
     e.preventDefault();
     state.q = el("q").value.trim();
-    state.accepted = []; state.dismissed = {};
+    state.accepted = []; state.dismissed = {}; state.useful = {};
     run();
   });
 

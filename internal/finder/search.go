@@ -69,6 +69,9 @@ type Request struct {
 	// Impression, when set, is used as the impression id instead of a
 	// random one (simulations, for reproducible exploration).
 	Impression string
+	// Useful are IDs of results the searcher marked useful: explicit
+	// relevance feedback. Only documents the viewer may read count.
+	Useful []string
 }
 
 // Search runs a query for a viewer: BM25 over readable documents, the
@@ -98,10 +101,30 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 			full[i] = index.QueryTerm{Key: t.Key, Weight: t.Weight}
 		}
 	}
+	var marked []suggest.Hit
+	for _, id := range cleanAccepted(req.Useful) {
+		if d, ok := view.DocNum(id); ok { // unreadable or unknown IDs are ignored
+			marked = append(marked, suggest.Hit{Doc: d, Score: 1})
+		}
+	}
+	if len(marked) > 0 {
+		// Explicit feedback: the feedback model over the marked documents
+		// refines the query (the same interpolation as automatic mode).
+		x := s.eng.AutoExpand(view, suggest.Request{Query: toSuggest(full), Viewer: req.Viewer, Feedback: marked})
+		full = make([]index.QueryTerm, len(x))
+		for i, t := range x {
+			full[i] = index.QueryTerm{Key: t.Key, Weight: t.Weight}
+		}
+	}
 	k := max(f.opts.Results, f.opts.FeedbackDocs)
 	res, err := view.Search(ctx, full, f.opts.BM25, k)
 	if err != nil {
 		return Response{}, err
+	}
+	fbRes := res
+	if len(marked) > 0 {
+		// Suggestions then draw on the marked documents first.
+		fbRes = withMarkedFirst(res, marked)
 	}
 	imp := req.Impression
 	if imp == "" {
@@ -109,7 +132,11 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 	}
 	out := Response{Query: req.Query, Accepted: accepted, Total: res.Total, Impression: imp,
 		Results: []Result{}}
-	out.Suggestions = f.suggestions(s, view, req.Viewer, q, accepted, res, out.Impression)
+	salt := ""
+	if len(marked) > 0 {
+		salt = "useful:" + strings.Join(cleanAccepted(req.Useful), ",")
+	}
+	out.Suggestions = f.suggestions(s, view, req.Viewer, q, accepted, fbRes, out.Impression, salt)
 	if req.WithResults {
 		hits := res.Hits
 		if len(hits) > f.opts.Results {
@@ -124,8 +151,8 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 
 // suggestions offers terms from the viewer's own top results, cached per
 // viewer scope, query and accepted terms.
-func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []index.QueryTerm, accepted []string, res index.Result, impression string) []suggest.Suggestion {
-	key := v.Key() + "\x00" + canonical(q) + "\x00" + strings.Join(accepted, "|")
+func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []index.QueryTerm, accepted []string, res index.Result, impression, salt string) []suggest.Suggestion {
+	key := v.Key() + "\x00" + canonical(q) + "\x00" + strings.Join(accepted, "|") + "\x00" + salt
 	if c, ok := f.cache.Get(key); ok {
 		return c.([]suggest.Suggestion)
 	}
@@ -235,6 +262,36 @@ func cleanAccepted(in []string) []string {
 		out = append(out, a)
 		if len(out) == 16 {
 			break
+		}
+	}
+	return out
+}
+
+func toSuggest(q []index.QueryTerm) []suggest.QueryTerm {
+	out := make([]suggest.QueryTerm, len(q))
+	for i, t := range q {
+		out[i] = suggest.QueryTerm{Key: t.Key, Weight: t.Weight}
+	}
+	return out
+}
+
+// withMarkedFirst puts the marked documents at the head of the feedback
+// list (keeping the result order for display apart: only suggestions read
+// this), scored above every result.
+func withMarkedFirst(res index.Result, marked []suggest.Hit) index.Result {
+	top := 0.0
+	if len(res.Hits) > 0 {
+		top = res.Hits[0].Score
+	}
+	seen := map[uint32]bool{}
+	out := index.Result{Total: res.Total}
+	for _, m := range marked {
+		seen[m.Doc] = true
+		out.Hits = append(out.Hits, index.Hit{Doc: m.Doc, Score: top + 1})
+	}
+	for _, h := range res.Hits {
+		if !seen[h.Doc] {
+			out.Hits = append(out.Hits, h)
 		}
 	}
 	return out

@@ -16,6 +16,7 @@ import (
 type lookupQuery struct {
 	Q        string `form:"q"`
 	Accepted string `form:"accepted"` // suggestion keys joined by "|"
+	Useful   string `form:"useful"`   // IDs of results marked useful, joined by "|"
 }
 
 func (s *Server) bindLookup(c *gin.Context) (finder.Request, bool) {
@@ -28,7 +29,7 @@ func (s *Server) bindLookup(c *gin.Context) (finder.Request, bool) {
 		apiError(c, http.StatusBadRequest, "missing_query", "parameter q is required")
 		return finder.Request{}, false
 	}
-	if !utf8.ValidString(lq.Q) || !utf8.ValidString(lq.Accepted) {
+	if !utf8.ValidString(lq.Q) || !utf8.ValidString(lq.Accepted) || !utf8.ValidString(lq.Useful) {
 		apiError(c, http.StatusBadRequest, "invalid_utf8", "parameters must be valid UTF-8")
 		return finder.Request{}, false
 	}
@@ -42,7 +43,11 @@ func (s *Server) bindLookup(c *gin.Context) (finder.Request, bool) {
 	if lq.Accepted != "" {
 		acc = strings.Split(lq.Accepted, "|")
 	}
-	return finder.Request{Query: lq.Q, Accepted: acc, Viewer: s.viewer(c)}, true
+	var useful []string
+	if lq.Useful != "" {
+		useful = strings.Split(lq.Useful, "|")
+	}
+	return finder.Request{Query: lq.Q, Accepted: acc, Useful: useful, Viewer: s.viewer(c)}, true
 }
 
 func (s *Server) answer(c *gin.Context, req finder.Request) {

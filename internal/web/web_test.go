@@ -143,3 +143,23 @@ func TestIdentityHeadersNeedTheSecret(t *testing.T) {
 		})
 	}
 }
+
+// TestUsefulMarksRefine: marking a result useful is explicit relevance
+// feedback (the feedback model over the marked document) — the results
+// change toward it; a restricted document's ID marked by an outsider is
+// ignored and leaks nothing.
+func TestUsefulMarksRefine(t *testing.T) {
+	s := newTestServer(t)
+	plain := get(t, s, "/api/v1/lookup?q=main", nil).Body.String()
+	marked := get(t, s, "/api/v1/lookup?q=main&useful=c", nil).Body.String()
+	if plain == marked {
+		t.Errorf("marking a document useful changed nothing")
+	}
+	if !strings.Contains(marked, `"id":"c"`) {
+		t.Errorf("the marked document's terms did not bring it in: %s", marked)
+	}
+	probe := get(t, s, "/api/v1/lookup?q=main&useful=s", nil).Body.String()
+	if strings.Contains(strings.ToLower(probe), "kestrelmoor") || strings.Contains(probe, `"id":"s"`) {
+		t.Errorf("an outsider's mark on a restricted document leaked it: %s", probe)
+	}
+}
