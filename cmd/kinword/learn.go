@@ -59,3 +59,22 @@ func learnLoop(ctx context.Context, log *slog.Logger, st *store.Store, f *finder
 		}
 	}
 }
+
+// pruneLoop drops raw events older than the retention window once an hour
+// (the learned model keeps what it learned until its own window passes).
+func pruneLoop(ctx context.Context, log *slog.Logger, st *store.Store, retention time.Duration) {
+	t := time.NewTicker(time.Hour)
+	defer t.Stop()
+	for {
+		if n, err := st.Prune(ctx, time.Now().UTC().Add(-retention)); err != nil && ctx.Err() == nil {
+			log.Error("event retention prune failed", "err", err)
+		} else if n > 0 {
+			log.Warn("pruned raw events past retention", "events", n)
+		}
+		select {
+		case <-ctx.Done():
+			return
+		case <-t.C:
+		}
+	}
+}

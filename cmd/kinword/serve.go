@@ -70,6 +70,7 @@ func (e *env) serve(ctx context.Context, addr string, demo bool) error {
 	refresh := time.Duration(e.cfg.Server.RefreshSeconds) * time.Second
 	retention := time.Duration(e.cfg.Store.RetentionDays) * 24 * time.Hour
 	go learnLoop(ctx, e.log, st, f, refresh, retention)
+	go pruneLoop(ctx, e.log, st, retention)
 	opts := web.Options{Events: st, Addr: addr, Demo: demo, AllowedOrigins: e.cfg.Server.AllowedOrigins, Log: e.log,
 		ShutdownGrace: time.Duration(e.cfg.Server.ShutdownGraceSeconds) * time.Second,
 		Identity: web.Identity{DepartmentHeader: e.cfg.Server.DepartmentHeader, GroupsHeader: e.cfg.Server.GroupsHeader,
