@@ -35,8 +35,7 @@ var (
 )
 
 // kinwordBinary builds ./cmd/kinword once per test process into a temp
-// folder (removed by the OS temp cleaner, not by the test: later tests of
-// the same process reuse it).
+// folder, which TestMain removes after the last test.
 func kinwordBinary(t *testing.T) string {
 	t.Helper()
 	binOnce.Do(func() {
