@@ -116,7 +116,44 @@ func runSimulate(ctx context.Context, e *env, args []string) error {
 		d.Oracle = oracleAcceptance(d, cascade)
 		d.NDCGBefore, d.NDCGAfter = mean(d.ndcg[0]), mean(d.ndcg[1])
 	}
-	return reportSimulation(e, depts)
+	amb, err := ambiguousTops(ctx, f, j)
+	if err != nil {
+		return err
+	}
+	return reportSimulation(e, depts, amb)
+}
+
+// ambiguousTop is one ambiguous query's first suggestion per asking
+// department after learning.
+type ambiguousTop struct {
+	Topic string            `json:"topic"`
+	Query string            `json:"query"`
+	Top   map[string]string `json:"top"` // department -> first suggestion's display
+}
+
+func ambiguousTops(ctx context.Context, f *finder.Finder, j *demo.Judged) ([]ambiguousTop, error) {
+	var out []ambiguousTop
+	pairs := j.AmbiguousPairs()
+	bases := make([]string, 0, len(pairs))
+	for b := range pairs {
+		bases = append(bases, b)
+	}
+	sort.Strings(bases)
+	for _, b := range bases {
+		a := ambiguousTop{Topic: b, Top: map[string]string{}}
+		for _, t := range pairs[b] {
+			a.Query = t.Text
+			resp, err := f.Search(ctx, finder.Request{Query: t.Text, Viewer: access.Viewer{Department: t.Department}, Impression: "report-" + t.ID})
+			if err != nil {
+				return nil, err
+			}
+			if len(resp.Suggestions) > 0 {
+				a.Top[t.Department] = resp.Suggestions[0].Display
+			}
+		}
+		out = append(out, a)
+	}
+	return out, nil
 }
 
 // simDepartments groups the ambiguous topic sides with preferred terms by
@@ -194,9 +231,9 @@ func mean(xs []float64) float64 {
 	return s / float64(len(xs))
 }
 
-func reportSimulation(e *env, depts []*simDept) error {
+func reportSimulation(e *env, depts []*simDept, amb []ambiguousTop) error {
 	if e.json {
-		return e.printJSON(map[string]any{"departments": depts})
+		return e.printJSON(map[string]any{"departments": depts, "ambiguous": amb})
 	}
 	fmt.Fprintf(e.stdout, "%-26s %6s %8s %10s %8s %8s %8s  curve\n", "department", "topics", "accept", "oracle", "ratio", "nDCG0", "nDCG1")
 	for _, d := range depts {
@@ -207,5 +244,21 @@ func reportSimulation(e *env, depts []*simDept) error {
 		fmt.Fprintf(e.stdout, "%-26s %6d %8.3f %10.3f %8.2f %8.3f %8.3f  %s\n", d.Department, d.Topics, d.Acceptance, d.Oracle,
 			d.Acceptance/max(d.Oracle, 1e-9), d.NDCGBefore, d.NDCGAfter, strings.Join(cv, " "))
 	}
+	differ := 0
+	fmt.Fprintln(e.stdout, "\nfirst suggestion per department on the ambiguous queries, after learning:")
+	for _, a := range amb {
+		var parts []string
+		seen := map[string]bool{}
+		for dept, top := range a.Top {
+			parts = append(parts, dept+": "+top)
+			seen[top] = true
+		}
+		sort.Strings(parts)
+		if len(seen) > 1 {
+			differ++
+		}
+		fmt.Fprintf(e.stdout, "  %s %q  %s\n", a.Topic, a.Query, strings.Join(parts, "; "))
+	}
+	fmt.Fprintf(e.stdout, "%d of %d ambiguous queries show different first suggestions to their two departments\n", differ, len(amb))
 	return nil
 }
