@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"os"
 	"path/filepath"
@@ -146,6 +147,24 @@ func (c *fileCorpus) Display(id uint32) string { return c.ff.OpenDisplay(c.ff.Te
 // reachable while mining streams the forward file. It returns the index
 // folder.
 func prepareMine(ctx context.Context, e *env, col string) (string, error) {
+	if col == "" {
+		// Nothing to ingest: check the forward file directly rather than
+		// loading the whole index into memory just to see it is not empty.
+		dir := filepath.Join(e.dataDir, "index")
+		ff, err := index.OpenForward(dir)
+		if errors.Is(err, os.ErrNotExist) {
+			return "", fmt.Errorf("mine: no index in %s: ingest documents first (or pass --collection)", e.dataDir)
+		}
+		if err != nil {
+			return "", err
+		}
+		n := ff.NumDocs()
+		ff.Close()
+		if n == 0 {
+			return "", fmt.Errorf("mine: the index in %s is empty: ingest documents first (or pass --collection)", e.dataDir)
+		}
+		return dir, nil
+	}
 	ix, err := e.openIndex(ctx)
 	if err != nil {
 		return "", err

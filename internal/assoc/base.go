@@ -60,12 +60,14 @@ func (b *baseRuns) merge(ctx context.Context, store *spillStore, own [][]slot, e
 }
 
 // budget is the memory budget left for counting a group's own documents
-// while the base runs are held in memory (at least a quarter of it).
+// while the base runs are held in memory, less the neighbour lists kept so
+// far and the candidate heaps the ranking that follows is expected to need
+// (m.held; see rankReserve), but at least an eighth of it.
 func (m *miner) budget(b *baseRuns) int64 {
 	if b == nil {
 		return m.o.MemoryBudget
 	}
-	return max(m.o.MemoryBudget-b.bytes, m.o.MemoryBudget/4)
+	return max(m.o.MemoryBudget-b.bytes-m.held, m.o.MemoryBudget/8)
 }
 
 // release deletes the kept files and drops the memory runs once no scope

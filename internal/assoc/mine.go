@@ -14,7 +14,11 @@ type miner struct {
 	sc    *scan
 	store *spillStore
 	stats mineStats
-	defs  []phraseDef
+	// held is the memory the counters of a group scope leave aside: the
+	// neighbour lists kept so far plus the candidate heaps of the next
+	// ranking (see heldBytes).
+	held int64
+	defs []phraseDef
 	// phraseSurf counts, per scope, how each phrase was written (when the
 	// corpus is a Surfacer): phrase ID -> surface words -> occurrences.
 	phraseSurf []map[uint32]map[string]uint32
@@ -126,6 +130,7 @@ func mine(ctx context.Context, c Corpus, opts Options, full bool) (*Table, error
 			return nil, err
 		}
 		t.scopes = append(t.scopes, st)
+		m.held = heldBytes(t.scopes)
 		rank.add(1)
 	}
 	base.release()
@@ -244,4 +249,19 @@ func (m *miner) countSurfaces(scope int, sf Surfacer, surf []uint32, buf []uint3
 		}
 		pos += w
 	}
+}
+
+// candBytes is the size of a ranking candidate (cand).
+const candBytes = 24
+
+// heldBytes is the memory that ranking a further group scope holds beside
+// the pair counts: the scopes' kept neighbour lists and per-term arrays,
+// plus the candidate heaps, estimated as the open scope's neighbour
+// entries (a group scope has about as many).
+func heldBytes(scopes []*scopeTable) int64 {
+	var n int64
+	for _, st := range scopes {
+		n += st.bytes()
+	}
+	return n + candBytes*int64(len(scopes[0].nb))
 }

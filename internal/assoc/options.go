@@ -52,9 +52,12 @@ type Options struct {
 	Measure Measure
 	// MemoryBudget bounds, in bytes, the pair- and phrase-count tables,
 	// including the open documents' runs held for the group scopes; when
-	// they outgrow it, sorted runs spill to files under TempDir. Per-term
-	// arrays and the kept neighbour lists are proportional to the vocabulary
-	// and not included. Default 1 GiB.
+	// they outgrow it, sorted runs spill to files under TempDir. While a
+	// group scope is counted, the neighbour lists kept so far and the
+	// candidate heaps of its ranking (estimated from the open scope) are
+	// charged against it too, but the group's counters always keep at
+	// least an eighth of it. The corpus's own dictionaries are not
+	// included. Default 1 GiB.
 	MemoryBudget int64
 	// TempDir is the folder for spill files (a private subfolder is made and
 	// removed). Default os.TempDir().

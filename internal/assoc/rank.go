@@ -29,6 +29,11 @@ type topK struct {
 func (t *topK) offer(term uint32, c cand) {
 	h := t.heaps[term]
 	if len(h) < t.k {
+		if len(h) == cap(h) { // grow to at most k, never past it (append would round up)
+			g := make([]cand, len(h), min(max(2*cap(h), 4), t.k))
+			copy(g, h)
+			h = g
+		}
 		h = append(h, c)
 		for i := len(h) - 1; i > 0; {
 			p := (i - 1) / 2

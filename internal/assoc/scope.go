@@ -74,6 +74,13 @@ func (s span) at(i uint32) (*scopeTable, uint32) {
 	return s.grp, s.ref[i] - refOwn
 }
 
+// bytes is the memory held by the scope's arrays.
+func (st *scopeTable) bytes() int64 {
+	n := len(st.udf) + len(st.df) + len(st.tf) + len(st.own) + len(st.off) + len(st.ref) +
+		len(st.nb) + len(st.k11) + len(st.win) + len(st.sup)
+	return 4 * int64(n)
+}
+
 // numNeighbours counts the neighbour entries of every term of st, lists
 // shared with the open scope included.
 func (st *scopeTable) numNeighbours() int {
