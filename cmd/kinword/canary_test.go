@@ -39,7 +39,7 @@ func TestDemoCanariesNeverReachOutsiders(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer ix.Close()
-	tbl, err := assoc.Mine(ctx, indexCorpus{all: ix.View(access.Viewer{Groups: ix.Groups()}), open: ix.View(access.Anonymous)}, assoc.Options{TempDir: data})
+	tbl, err := mineIndex(ctx, ix, data)
 	if err != nil {
 		t.Fatal(err)
 	}

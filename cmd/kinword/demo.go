@@ -8,7 +8,6 @@ import (
 	"strings"
 
 	"kinword/internal/access"
-	"kinword/internal/assoc"
 	"kinword/internal/index"
 	"kinword/internal/suggest"
 )
@@ -53,8 +52,11 @@ func runDemo(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	tbl, err := mineDemo(ctx, e, ix)
+	tbl, err := mineIndex(ctx, ix, e.dataDir)
 	if err != nil {
+		return err
+	}
+	if err := tbl.Write(e.tableFile()); err != nil {
 		return err
 	}
 	eng, err := suggest.New(tbl, suggest.Options{})
@@ -101,13 +103,4 @@ func runDemo(ctx context.Context, e *env, args []string) error {
 	}
 	ix.Close()
 	return e.serve(ctx, *addr, true)
-}
-
-// mineDemo mines the demo index into the data folder's table.
-func mineDemo(ctx context.Context, e *env, ix *index.Index) (*assoc.Table, error) {
-	tbl, err := assoc.Mine(ctx, indexCorpus{all: ix.View(access.Viewer{Groups: ix.Groups()}), open: ix.View(access.Anonymous)}, assoc.Options{TempDir: e.dataDir})
-	if err != nil {
-		return nil, err
-	}
-	return tbl, tbl.Write(e.tableFile())
 }

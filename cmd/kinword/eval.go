@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"context"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"os"
 	"path/filepath"
@@ -58,16 +59,9 @@ func runEval(ctx context.Context, e *env, args []string) error {
 		return err
 	}
 	defer ix.Close()
-	var n int
-	if _, serr := os.Stat(filepath.Join(*dir, "docs.jsonl")); serr == nil {
-		n, err = loadCollectionDocs(ctx, e, ix, filepath.Join(*dir, "docs.jsonl"))
-	} else if _, serr := os.Stat(filepath.Join(*dir, "docs")); serr == nil {
-		// A folder collection (like the demo intranet): ingest it as
-		// `kinword ingest` would.
-		_, err = syncPaths(ctx, e, ix, []string{filepath.Join(*dir, "docs")})
-		n = ix.Len()
-	} else {
-		return usagef("%s has neither docs.jsonl nor a docs/ folder", *dir)
+	n, err := ingestCollection(ctx, e, ix, *dir)
+	if errors.Is(err, errNoCollectionDocs) {
+		return usagef("%v", err)
 	}
 	if err != nil {
 		return err
@@ -114,7 +108,7 @@ func runEval(ctx context.Context, e *env, args []string) error {
 		}
 		var o cvOutcome
 		if m == "kinword" {
-			tbl, err := mineForEval(ctx, ix, tmp)
+			tbl, err := mineIndex(ctx, ix, tmp)
 			if err != nil {
 				return err
 			}
@@ -205,6 +199,25 @@ func runEval(ctx context.Context, e *env, args []string) error {
 		return rep.WriteTopicTable(e.stdout, "bm25")
 	}
 	return nil
+}
+
+// errNoCollectionDocs reports a collection folder with no documents to read.
+var errNoCollectionDocs = errors.New("collection has neither docs.jsonl nor a docs/ folder")
+
+// ingestCollection indexes a collection folder: its docs.jsonl, or else its
+// docs/ folder as `kinword ingest` would (like the demo intranet). It
+// returns the number of documents in the index.
+func ingestCollection(ctx context.Context, e *env, ix *index.Index, dir string) (int, error) {
+	if _, err := os.Stat(filepath.Join(dir, "docs.jsonl")); err == nil {
+		return loadCollectionDocs(ctx, e, ix, filepath.Join(dir, "docs.jsonl"))
+	}
+	if _, err := os.Stat(filepath.Join(dir, "docs")); err != nil {
+		return 0, fmt.Errorf("%s: %w", dir, errNoCollectionDocs)
+	}
+	if _, err := syncPaths(ctx, e, ix, []string{filepath.Join(dir, "docs")}); err != nil {
+		return 0, err
+	}
+	return ix.Len(), nil
 }
 
 // loadCollectionDocs indexes a collection's docs.jsonl ({"id","title","text"}

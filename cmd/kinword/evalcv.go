@@ -16,17 +16,28 @@ type cvOutcome struct {
 // 2-fold cross-validation over the topics pick per fold the configuration
 // with the best MAP on the other fold.
 func (s *evalSet) crossValidate(ctx context.Context, method string, grid []feedbackConfig, seed uint64) (cvOutcome, error) {
-	all := make([]map[string]eval.Measures, len(grid))
-	for i, c := range grid {
+	return s.crossValidateWith(ctx, grid, method, seed, func(c feedbackConfig) (expander, error) {
 		m, err := newModel(method, c, s.bm25)
 		if err != nil {
-			return cvOutcome{}, err
+			return nil, err
 		}
-		per, _, err := s.run(ctx, prfExpander(s.view, m, c.Docs))
+		return prfExpander(s.view, m, c.Docs), nil
+	})
+}
+
+// crossValidateWith evaluates the expander built for every configuration
+// of grid once, then picks per fold with pick.
+func (s *evalSet) crossValidateWith(ctx context.Context, grid []feedbackConfig, method string, seed uint64,
+	build func(feedbackConfig) (expander, error)) (cvOutcome, error) {
+	all := make([]map[string]eval.Measures, len(grid))
+	for i, c := range grid {
+		ex, err := build(c)
 		if err != nil {
 			return cvOutcome{}, err
 		}
-		all[i] = per
+		if all[i], _, err = s.run(ctx, ex); err != nil {
+			return cvOutcome{}, err
+		}
 	}
 	return s.pick(all, grid, method, seed)
 }

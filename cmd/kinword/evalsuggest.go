@@ -52,8 +52,9 @@ func engineExpander(v *index.View, eng *suggest.Engine) expander {
 	}
 }
 
-// mineForEval mines an association table from the evaluation index.
-func mineForEval(ctx context.Context, ix *index.Index, tmp string) (*assoc.Table, error) {
+// mineIndex mines an association table from an open index (one table per
+// access scope; display forms from open documents only).
+func mineIndex(ctx context.Context, ix *index.Index, tmp string) (*assoc.Table, error) {
 	corpus := indexCorpus{all: ix.View(access.Viewer{Groups: ix.Groups()}), open: ix.View(access.Anonymous)}
 	return assoc.Mine(ctx, corpus, assoc.Options{TempDir: tmp})
 }
@@ -64,22 +65,16 @@ func engineFor(tbl *assoc.Table, c feedbackConfig) (*suggest.Engine, error) {
 		RM3: prf.RM3Options{FeedbackDocs: c.Docs, FeedbackTerms: max(c.Terms, 50), OrigWeight: c.Orig, Mu: c.Alt}})
 }
 
-// crossValidateKinword is crossValidate for Kinword's own automatic mode.
+// crossValidateKinword is crossValidate for Kinword's own automatic mode
+// (the RM3 grid, through the suggestion engine).
 func (s *evalSet) crossValidateKinword(ctx context.Context, tbl *assoc.Table, seed uint64) (cvOutcome, error) {
-	grid := feedbackGrid("rm3")
-	all := make([]map[string]eval.Measures, len(grid))
-	for i, c := range grid {
+	return s.crossValidateWith(ctx, feedbackGrid("rm3"), "rm3", seed, func(c feedbackConfig) (expander, error) {
 		eng, err := engineFor(tbl, c)
 		if err != nil {
-			return cvOutcome{}, err
+			return nil, err
 		}
-		per, _, err := s.run(ctx, engineExpander(s.view, eng))
-		if err != nil {
-			return cvOutcome{}, err
-		}
-		all[i] = per
-	}
-	return s.pick(all, grid, "rm3", seed)
+		return engineExpander(s.view, eng), nil
+	})
 }
 
 // pick runs 2-fold cross-validation over precomputed per-configuration

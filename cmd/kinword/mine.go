@@ -170,14 +170,8 @@ func prepareMine(ctx context.Context, e *env, col string) (string, error) {
 		return "", err
 	}
 	defer ix.Close()
-	if col != "" {
-		if _, err := os.Stat(filepath.Join(col, "docs.jsonl")); err == nil {
-			if _, err := loadCollectionDocs(ctx, e, ix, filepath.Join(col, "docs.jsonl")); err != nil {
-				return "", err
-			}
-		} else if _, err := syncPaths(ctx, e, ix, []string{filepath.Join(col, "docs")}); err != nil {
-			return "", err
-		}
+	if _, err := ingestCollection(ctx, e, ix, col); err != nil {
+		return "", err
 	}
 	if ix.Len() == 0 {
 		return "", fmt.Errorf("mine: the index in %s is empty: ingest documents first (or pass --collection)", e.dataDir)

@@ -88,10 +88,7 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 		return Response{}, err
 	}
 	view := f.ix.View(req.Viewer)
-	sq := make([]suggest.QueryTerm, len(q))
-	for i, t := range q {
-		sq[i] = suggest.QueryTerm{Key: t.Key, Weight: t.Weight}
-	}
+	sq := toSuggest(q)
 	accepted := cleanAccepted(req.Accepted)
 	full := q
 	if len(accepted) > 0 {
@@ -156,10 +153,7 @@ func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []in
 	if c, ok := f.cache.Get(key); ok {
 		return c.([]suggest.Suggestion)
 	}
-	sq := make([]suggest.QueryTerm, 0, len(q)+len(accepted))
-	for _, t := range q {
-		sq = append(sq, suggest.QueryTerm{Key: t.Key, Weight: t.Weight})
-	}
+	sq := toSuggest(q)
 	for _, a := range accepted { // accepted terms count as query terms: never offered again
 		sq = append(sq, suggest.QueryTerm{Key: a, Weight: 0.3})
 	}
