@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -32,6 +33,7 @@ func runEval(ctx context.Context, e *env, args []string) error {
 	markdown := fs.Bool("markdown", false, "print Markdown tables instead of plain text")
 	methods := fs.String("methods", "bm25,rm3,mixture,rocchio,kinword", "comma-separated methods: bm25, rm3, mixture, rocchio, kinword (Kinword's default: suggestion engine's automatic expansion; feedback methods get 2-fold cross-validated parameters; kinword also scores suggestions)")
 	seed := fs.Uint64("seed", 1, "seed for the cross-validation split and the randomization test")
+	reportDir := fs.String("report", "", "also write the report here as NAME.md and NAME.json, with a TREC run file NAME.METHOD.run per method (NAME: the collection's folder name)")
 	if _, err := e.parse(fs, c, args); err != nil {
 		return err
 	}
@@ -100,6 +102,7 @@ func runEval(ctx context.Context, e *env, args []string) error {
 		return err
 	}
 	chosen := map[string][]string{}
+	methodRuns := map[string]map[string][]eval.Scored{"bm25": runs}
 	var quality *suggestionQuality
 	var simulated *simulatedSearcher
 	for _, m := range want {
@@ -128,6 +131,7 @@ func runEval(ctx context.Context, e *env, args []string) error {
 			return err
 		}
 		chosen[m] = o.Chosen
+		methodRuns[m] = o.Runs
 		if err := rep.Add(eval.NewRun(m, o.PerTopic)); err != nil {
 			return err
 		}
@@ -154,12 +158,12 @@ func runEval(ctx context.Context, e *env, args []string) error {
 		}
 		misses = append(misses, countMisses(kind, sub, runs, col.Qrels))
 	}
-	if e.json {
+	var obj map[string]any
+	if e.json || *reportDir != "" {
 		var buf strings.Builder
 		if err := rep.WriteJSON(&buf); err != nil {
 			return err
 		}
-		var obj map[string]any
 		if err := json.Unmarshal([]byte(buf.String()), &obj); err != nil {
 			return err
 		}
@@ -169,30 +173,44 @@ func runEval(ctx context.Context, e *env, args []string) error {
 			obj["suggestions"] = quality
 			obj["simulated"] = simulated
 		}
-		return e.printJSON(obj)
 	}
-	fmt.Fprintf(e.stdout, "collection %s: %d documents, %d judged topics, BM25 k1 %.2f b %.2f\n\n", col.Name, n, len(col.Topics), e.cfg.Index.BM25K1, e.cfg.Index.BM25B)
-	if *markdown {
-		err = rep.WriteMarkdown(e.stdout)
-	} else {
-		err = rep.WriteTable(e.stdout)
+	text := func(w io.Writer, markdown bool) error {
+		fmt.Fprintf(w, "collection %s: %d documents, %d judged topics, BM25 k1 %.2f b %.2f\n\n", col.Name, n, len(col.Topics), e.cfg.Index.BM25K1, e.cfg.Index.BM25B)
+		var err error
+		if markdown {
+			err = rep.WriteMarkdown(w)
+		} else {
+			err = rep.WriteTable(w)
+		}
+		if err != nil {
+			return err
+		}
+		for _, m := range want {
+			if c := chosen[m]; len(c) > 0 {
+				fmt.Fprintf(w, "%s parameters (2-fold cross-validation): %s\n", m, strings.Join(c, "; "))
+			}
+		}
+		if quality != nil {
+			fmt.Fprintf(w, "suggestions (top 5, %d offered over %d topics): good %.2f, neutral %.2f, bad %.2f (AP change of +/-%.3f on adding one)\n",
+				quality.Suggestions, quality.Topics, quality.Good, quality.Neutral, quality.Bad, qualityDelta)
+			fmt.Fprintf(w, "simulated searcher MAP: best of 5 %.4f, best pair %.4f, first %.4f, random one %.4f (BM25 %.4f)\n",
+				simulated.BestOf5, simulated.BestPairOf5, simulated.FirstOf5, simulated.RandomOf5, rep.Runs[0].MAP)
+		}
+		for _, m := range misses {
+			fmt.Fprintf(w, "%s topics: %d of %d have no relevant document in the top 10, %d none of their best-graded ones\n", m.Kind, m.Missed, m.Topics, m.MissedBest)
+		}
+		return nil
 	}
-	if err != nil {
-		return err
-	}
-	for _, m := range want {
-		if c := chosen[m]; len(c) > 0 {
-			fmt.Fprintf(e.stdout, "%s parameters (2-fold cross-validation): %s\n", m, strings.Join(c, "; "))
+	if *reportDir != "" {
+		if err := writeEvalReport(*reportDir, filepath.Base(filepath.Clean(*dir)), obj, methodRuns, func(w io.Writer) error { return text(w, true) }); err != nil {
+			return err
 		}
 	}
-	if quality != nil {
-		fmt.Fprintf(e.stdout, "suggestions (top 5, %d offered over %d topics): good %.2f, neutral %.2f, bad %.2f (AP change of +/-%.3f on adding one)\n",
-			quality.Suggestions, quality.Topics, quality.Good, quality.Neutral, quality.Bad, qualityDelta)
-		fmt.Fprintf(e.stdout, "simulated searcher MAP: best of 5 %.4f, best pair %.4f, first %.4f, random one %.4f (BM25 %.4f)\n",
-			simulated.BestOf5, simulated.BestPairOf5, simulated.FirstOf5, simulated.RandomOf5, rep.Runs[0].MAP)
+	if e.json {
+		return e.printJSON(obj)
 	}
-	for _, m := range misses {
-		fmt.Fprintf(e.stdout, "%s topics: %d of %d have no relevant document in the top 10, %d none of their best-graded ones\n", m.Kind, m.Missed, m.Topics, m.MissedBest)
+	if err := text(e.stdout, *markdown); err != nil {
+		return err
 	}
 	if *perTopic {
 		fmt.Fprintln(e.stdout)

@@ -10,6 +10,13 @@ import (
 type cvOutcome struct {
 	PerTopic map[string]eval.Measures
 	Chosen   []string // the configuration chosen per fold, described
+	// Runs are the rankings of the cross-validated run: each fold's topics
+	// ranked with the configuration chosen on the other fold (for TREC run
+	// files).
+	Runs map[string][]eval.Scored
+
+	folds  [][]string // the topics of each fold
+	chosen []int      // the grid index chosen for each fold
 }
 
 // crossValidate evaluates every configuration of a method once, then lets
@@ -39,7 +46,25 @@ func (s *evalSet) crossValidateWith(ctx context.Context, grid []feedbackConfig, 
 			return cvOutcome{}, err
 		}
 	}
-	return s.pick(all, grid, method, seed)
+	o, err := s.pick(all, grid, method, seed)
+	if err != nil {
+		return o, err
+	}
+	o.Runs = map[string][]eval.Scored{}
+	for f, topics := range o.folds {
+		ex, err := build(grid[o.chosen[f]])
+		if err != nil {
+			return cvOutcome{}, err
+		}
+		_, runs, err := s.runOn(ctx, ex, topics)
+		if err != nil {
+			return cvOutcome{}, err
+		}
+		for q, r := range runs {
+			o.Runs[q] = r
+		}
+	}
+	return o, nil
 }
 
 // judgedTopics lists the topics with at least one relevant document.

@@ -23,6 +23,9 @@ type evalSet struct {
 	queries map[string][]index.QueryTerm
 	first   map[string]index.Result
 	qrels   eval.Qrels
+	// accept is the accepted-term weight used when scoring suggestions
+	// (0: suggest's default).
+	accept float64
 }
 
 func newEvalSet(ctx context.Context, view *index.View, p rank.BM25, topics []eval.Topic, qrels eval.Qrels, parse func(string) ([]index.QueryTerm, error)) (*evalSet, error) {
@@ -49,8 +52,14 @@ type expander func(q []index.QueryTerm, first index.Result) []index.QueryTerm
 
 // run scores every topic with an expander (nil = plain BM25).
 func (s *evalSet) run(ctx context.Context, ex expander) (map[string]eval.Measures, map[string][]eval.Scored, error) {
+	return s.runOn(ctx, ex, s.qids)
+}
+
+// runOn is run over some of the topics: the measures and the rankings of
+// those topics only.
+func (s *evalSet) runOn(ctx context.Context, ex expander, qids []string) (map[string]eval.Measures, map[string][]eval.Scored, error) {
 	runs := map[string][]eval.Scored{}
-	for _, qid := range s.qids {
+	for _, qid := range qids {
 		q, ok := s.queries[qid]
 		if !ok {
 			runs[qid] = nil
@@ -129,9 +138,15 @@ type feedbackConfig struct {
 	// Alt is the method's fourth parameter: RM3's Dirichlet mu, the
 	// mixture model's background weight, Rocchio's gamma (unused: 0).
 	Alt float64
+	// Model names the feedback model when a grid mixes models (Kinword's
+	// own method: "rm3" or "rocchio"); "" means the grid's one method.
+	Model string
 }
 
 func (c feedbackConfig) String(method string) string {
+	if c.Model != "" && c.Model != method {
+		return c.Model + " " + c.String(c.Model)
+	}
 	if method == "rocchio" {
 		return fmt.Sprintf("docs=%d terms=%d beta=%.2f", c.Docs, c.Terms, rocchioBeta(c))
 	}
@@ -157,7 +172,7 @@ func feedbackGrid(method string) []feedbackConfig {
 		for _, t := range []int{10, 25, 50} {
 			for _, o := range []float64{0.3, 0.5, 0.7} {
 				for _, a := range alts {
-					g = append(g, feedbackConfig{d, t, o, a})
+					g = append(g, feedbackConfig{Docs: d, Terms: t, Orig: o, Alt: a, Model: method})
 				}
 			}
 		}
