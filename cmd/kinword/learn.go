@@ -45,12 +45,18 @@ func learnOnce(ctx context.Context, st *store.Store, f *finder.Finder, retention
 
 // learnLoop refreshes learning every interval until ctx ends; a store
 // failure keeps the previous model serving.
-func learnLoop(ctx context.Context, log *slog.Logger, st *store.Store, f *finder.Finder, every, retention time.Duration) {
+// The librarian's rules are refreshed on the same tick.
+func learnLoop(ctx context.Context, log *slog.Logger, st *store.Store, f *finder.Finder, rules *rulesRefresher, every, retention time.Duration) {
 	t := time.NewTicker(every)
 	defer t.Stop()
 	for {
 		if _, err := learnOnce(ctx, st, f, retention, prefs.Options{}); err != nil && ctx.Err() == nil {
 			log.Error("learning refresh failed; the previous model keeps serving", "err", err)
+		}
+		if rules != nil {
+			if err := rules.refresh(ctx); err != nil && ctx.Err() == nil {
+				log.Error("rules refresh failed; the previous rules keep serving", "err", err)
+			}
 		}
 		select {
 		case <-ctx.Done():

@@ -10,6 +10,7 @@ import (
 	"syscall"
 	"time"
 
+	"kinword/internal/config"
 	"kinword/internal/finder"
 	"kinword/internal/store"
 	"kinword/internal/text"
@@ -44,10 +45,15 @@ func runServe(ctx context.Context, e *env, args []string) error {
 }
 
 // serve opens the finder on the data folder and serves until ctx ends.
-// SIGHUP reloads the association table.
+// SIGHUP reloads the index snapshot and the association table (as POST
+// /api/v1/reload does).
 func (e *env) serve(ctx context.Context, addr string, demo bool) error {
 	if addr == "" {
 		addr = e.cfg.Server.Addr
+	}
+	tokens, err := e.apiTokens()
+	if err != nil {
+		return err
 	}
 	p, err := text.NewPipeline(e.cfg.Language)
 	if err != nil {
@@ -69,9 +75,9 @@ func (e *env) serve(ctx context.Context, addr string, demo bool) error {
 	defer st.Close()
 	refresh := time.Duration(e.cfg.Server.RefreshSeconds) * time.Second
 	retention := time.Duration(e.cfg.Store.RetentionDays) * 24 * time.Hour
-	go learnLoop(ctx, e.log, st, f, refresh, retention)
+	go learnLoop(ctx, e.log, st, f, &rulesRefresher{st: st, f: f, p: p}, refresh, retention)
 	go pruneLoop(ctx, e.log, st, retention)
-	opts := web.Options{Events: st, Addr: addr, Demo: demo, AllowedOrigins: e.cfg.Server.AllowedOrigins, Log: e.log,
+	opts := web.Options{Events: st, Addr: addr, Demo: demo, AllowedOrigins: e.cfg.Server.AllowedOrigins, Log: e.log, Tokens: tokens,
 		ShutdownGrace: time.Duration(e.cfg.Server.ShutdownGraceSeconds) * time.Second,
 		Identity: web.Identity{DepartmentHeader: e.cfg.Server.DepartmentHeader, GroupsHeader: e.cfg.Server.GroupsHeader,
 			SecretHeader: e.cfg.Server.SecretHeader, Secret: os.Getenv("KINWORD_PROXY_SECRET"), TrustLoopback: e.cfg.Server.TrustLoopback},
@@ -88,11 +94,7 @@ func (e *env) serve(ctx context.Context, addr string, demo bool) error {
 	defer signal.Stop(hup)
 	go func() {
 		for range hup {
-			if err := f.Reload(ctx); err != nil {
-				e.log.Error("reload failed; the previous table keeps serving", "err", err)
-			} else {
-				e.log.Warn("reloaded the association table")
-			}
+			_ = srv.Reload(ctx, "SIGHUP") // logs and counts the outcome itself
 		}
 	}()
 	return srv.Run(ctx, func(a string) {
@@ -100,6 +102,7 @@ func (e *env) serve(ctx context.Context, addr string, demo bool) error {
 		fmt.Fprintf(e.stdout, "serving %d documents on http://%s/ (ready in %s; association table: %v)\n", st.Documents, a, time.Since(start).Round(time.Millisecond), st.Table)
 		if demo {
 			fmt.Fprintln(e.stdout, "demo mode: visitors may pick a department persona; invented data only. Ctrl-C stops.")
+			fmt.Fprintln(e.stdout, "demo mode: callers on this machine (loopback) act as admin without a token; never use demo mode for real data.")
 		}
 	})
 }
@@ -115,4 +118,23 @@ func (e *env) openStore(ctx context.Context) (*store.Store, error) {
 		dsn = "sqlite:" + filepath.Join(e.dataDir, p)
 	}
 	return store.Open(ctx, dsn)
+}
+
+// apiTokens returns the configured API tokens ([[server.tokens]] in the
+// configuration, plus the file named by KINWORD_TOKENS_FILE), checked
+// together so that names stay unique across both.
+func (e *env) apiTokens() ([]web.Token, error) {
+	more, err := config.LoadTokensFile(os.Getenv(config.TokensFileEnv))
+	if err != nil {
+		return nil, err
+	}
+	all := append(append([]config.Token(nil), e.cfg.Server.Tokens...), more...)
+	if err := config.ValidateTokens(all); err != nil {
+		return nil, err
+	}
+	out := make([]web.Token, len(all))
+	for i, t := range all {
+		out[i] = web.Token{Name: t.Name, Role: web.Role(t.Role), SHA256: t.SHA256}
+	}
+	return out, nil
 }

@@ -9,6 +9,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"regexp"
 	"sort"
 	"strings"
 
@@ -61,6 +62,92 @@ type Server struct {
 	ShutdownGraceSeconds int `toml:"shutdown_grace_seconds"`
 	// RefreshSeconds is the suggestion cache lifetime; default 30.
 	RefreshSeconds int `toml:"refresh_seconds"`
+	// Tokens are the API tokens of the librarian and admin roles
+	// ([[server.tokens]]); default none. More may come from the file named
+	// by KINWORD_TOKENS_FILE (LoadTokensFile).
+	Tokens []Token `toml:"tokens"`
+}
+
+// Token is one API token entry. The token itself is never stored: only
+// its SHA-256, as `kinword token` prints it.
+type Token struct {
+	// Name identifies the token in logs; unique, letters, digits, '.', '_'
+	// or '-'.
+	Name string `toml:"name"`
+	// Role is "librarian" or "admin".
+	Role string `toml:"role"`
+	// SHA256 is the lowercase hex SHA-256 of the token (64 digits).
+	SHA256 string `toml:"sha256"`
+}
+
+// TokensFileEnv names the environment variable that may point at a TOML
+// file of [[server.tokens]] entries, added to the configuration's.
+const TokensFileEnv = "KINWORD_TOKENS_FILE"
+
+var (
+	tokenName = regexp.MustCompile(`^[A-Za-z0-9._-]{1,64}$`)
+	hexSHA256 = regexp.MustCompile(`^[0-9a-f]{64}$`)
+)
+
+// LoadTokensFile reads a file holding only [[server.tokens]] entries (the
+// lines `kinword token` prints) and validates them; "" gives none.
+func LoadTokensFile(path string) ([]Token, error) {
+	if path == "" {
+		return nil, nil
+	}
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("config: tokens file: %w", err)
+	}
+	var f struct {
+		Server struct {
+			Tokens []Token `toml:"tokens"`
+		} `toml:"server"`
+	}
+	md, err := toml.NewDecoder(bytes.NewReader(b)).Decode(&f)
+	if err != nil {
+		return nil, fmt.Errorf("config: tokens file %s: %w", path, err)
+	}
+	if und := md.Undecoded(); len(und) > 0 {
+		return nil, fmt.Errorf("%w: tokens file %s: only [[server.tokens]] entries belong there, not %s", ErrInvalid, path, und[0])
+	}
+	if err := ValidateTokens(f.Server.Tokens); err != nil {
+		return nil, fmt.Errorf("tokens file %s: %w", path, err)
+	}
+	return f.Server.Tokens, nil
+}
+
+// ValidateTokens reports every invalid token entry at once: names and
+// hashes must be unique, and a value that looks like a token in clear is
+// refused.
+func ValidateTokens(ts []Token) error {
+	var errs []error
+	names, sums := map[string]bool{}, map[string]bool{}
+	for i, t := range ts {
+		bad := func(format string, args ...any) {
+			errs = append(errs, fmt.Errorf("%w: server.tokens[%d] (%q): %s", ErrInvalid, i, t.Name, fmt.Sprintf(format, args...)))
+		}
+		if !tokenName.MatchString(t.Name) {
+			bad("name must be 1 to 64 letters, digits, '.', '_' or '-'")
+		}
+		if t.Role != "librarian" && t.Role != "admin" {
+			bad("role %q is neither librarian nor admin", t.Role)
+		}
+		switch {
+		case strings.HasPrefix(t.SHA256, "kw_"):
+			bad("sha256 holds a token in clear; store only its SHA-256 (kinword token prints it) and make a new token, this one is exposed")
+		case !hexSHA256.MatchString(t.SHA256):
+			bad("sha256 must be 64 lowercase hex digits")
+		}
+		if names[t.Name] {
+			bad("name used twice")
+		}
+		if sums[t.SHA256] {
+			bad("same hash as another token")
+		}
+		names[t.Name], sums[t.SHA256] = true, true
+	}
+	return errors.Join(errs...)
 }
 
 // Index configures ranking and bleve writes.
@@ -153,10 +240,10 @@ func (c Config) Validate() error {
 	if !text.ValidLanguage(c.Language) {
 		bad("language", "%q is not one of %v", c.Language, text.Languages)
 	}
-	if c.Index.BM25K1 <= 0 || c.Index.BM25K1 > 10 {
+	if !(c.Index.BM25K1 > 0 && c.Index.BM25K1 <= 10) { // written so that NaN fails
 		bad("index.bm25_k1", "%v is outside (0, 10]", c.Index.BM25K1)
 	}
-	if c.Index.BM25B < 0 || c.Index.BM25B > 1 {
+	if !(c.Index.BM25B >= 0 && c.Index.BM25B <= 1) {
 		bad("index.bm25_b", "%v is outside [0, 1]", c.Index.BM25B)
 	}
 	if c.Index.BatchSize < 1 || c.Index.BatchSize > 100000 {
@@ -199,6 +286,9 @@ func (c Config) Validate() error {
 	}
 	if c.Server.RefreshSeconds < 1 || c.Server.RefreshSeconds > 3600 {
 		bad("server.refresh_seconds", "%d is outside 1..3600", c.Server.RefreshSeconds)
+	}
+	if err := ValidateTokens(c.Server.Tokens); err != nil {
+		errs = append(errs, err)
 	}
 	return errors.Join(errs...)
 }

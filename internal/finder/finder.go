@@ -10,16 +10,16 @@ import (
 	"crypto/rand"
 	"encoding/hex"
 	"errors"
-	"fmt"
-	"os"
 	"path/filepath"
 	"strings"
+	"sync"
 	"sync/atomic"
 	"time"
 
 	gocache "github.com/patrickmn/go-cache"
 
 	"kinword/internal/assoc"
+	"kinword/internal/curate"
 	"kinword/internal/index"
 	"kinword/internal/prefs"
 	"kinword/internal/rank"
@@ -87,7 +87,9 @@ type Finder struct {
 	table string // association table path ("" = none)
 	st    atomic.Pointer[state]
 	model atomic.Pointer[prefs.Model]
+	rules atomic.Pointer[curate.Set]
 	cache *gocache.Cache
+	wmu   sync.Mutex // serialises document pushes: each is written and committed whole
 }
 
 // SetModel publishes a new learned model (nil switches learning off) and
@@ -133,29 +135,6 @@ func Open(ctx context.Context, dataDir string, p *text.Pipeline, opts Options) (
 		return nil, err
 	}
 	return f, nil
-}
-
-// Reload loads the association table again and swaps it in atomically. On
-// any error the previous table keeps serving and the error is returned.
-func (f *Finder) Reload(ctx context.Context) error {
-	var tbl *assoc.Table
-	if f.table != "" {
-		t, err := assoc.Load(f.table)
-		switch {
-		case errors.Is(err, os.ErrNotExist):
-		case err != nil:
-			return fmt.Errorf("finder: reload table: %w", err)
-		default:
-			tbl = t
-		}
-	}
-	eng, err := suggest.New(tbl, suggest.Options{K: f.opts.Suggestions})
-	if err != nil {
-		return fmt.Errorf("finder: reload: %w", err)
-	}
-	f.st.Store(&state{tbl: tbl, eng: eng, loaded: time.Now()})
-	f.cache.Flush()
-	return ctx.Err()
 }
 
 // Close releases the index.

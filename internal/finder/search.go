@@ -3,8 +3,10 @@ package finder
 import (
 	"context"
 	"strings"
+	"time"
 
 	"kinword/internal/access"
+	"kinword/internal/curate"
 	"kinword/internal/index"
 	"kinword/internal/prefs"
 	"kinword/internal/suggest"
@@ -88,11 +90,11 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 		return Response{}, err
 	}
 	view := f.ix.View(req.Viewer)
-	sq := toSuggest(q)
+	eff := f.effect(req.Viewer.Department, q, time.Now())
 	accepted := cleanAccepted(req.Accepted)
-	full := q
+	full := withEquivalents(q, eff)
 	if len(accepted) > 0 {
-		x := suggest.Expand(sq, accepted, f.opts.AcceptWeight)
+		x := suggest.Expand(toSuggest(full), accepted, f.opts.AcceptWeight)
 		full = make([]index.QueryTerm, len(x))
 		for i, t := range x {
 			full[i] = index.QueryTerm{Key: t.Key, Weight: t.Weight}
@@ -133,7 +135,7 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 	if len(marked) > 0 {
 		salt = "useful:" + strings.Join(cleanAccepted(req.Useful), ",")
 	}
-	out.Suggestions = f.suggestions(s, view, req.Viewer, q, accepted, fbRes, out.Impression, salt)
+	out.Suggestions = f.suggestions(s, view, req.Viewer, q, accepted, fbRes, out.Impression, salt, eff)
 	if req.WithResults {
 		hits := res.Hits
 		if len(hits) > f.opts.Results {
@@ -148,7 +150,7 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 
 // suggestions offers terms from the viewer's own top results, cached per
 // viewer scope, query and accepted terms.
-func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []index.QueryTerm, accepted []string, res index.Result, impression, salt string) []suggest.Suggestion {
+func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []index.QueryTerm, accepted []string, res index.Result, impression, salt string, eff curate.Effect) []suggest.Suggestion {
 	key := v.Key() + "\x00" + canonical(q) + "\x00" + strings.Join(accepted, "|") + "\x00" + salt
 	if c, ok := f.cache.Get(key); ok {
 		return c.([]suggest.Suggestion)
@@ -169,10 +171,15 @@ func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []in
 	if m != nil {
 		k *= 6 // a wider pool, so learning can lift a term the content score ranks lower
 	}
-	sugs := s.eng.Suggest(view, suggest.Request{Query: sq, Viewer: v, Feedback: fb, K: k})
+	req := suggest.Request{Query: sq, Viewer: v, Feedback: fb, K: k}
+	if len(eff.Blocked) > 0 {
+		req.Exclude = eff.Blocks
+	}
+	sugs := s.eng.Suggest(view, req)
 	if m != nil {
 		sugs = f.learnOrder(m, v.Department, canonical(q), sugs, impression)
 	}
+	sugs = applyRules(view, eff, q, accepted, sugs, f.opts.Suggestions)
 	if sugs == nil {
 		sugs = []suggest.Suggestion{}
 	}

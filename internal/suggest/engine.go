@@ -88,6 +88,10 @@ type Request struct {
 	Feedback []Hit
 	// K is the number of suggestions wanted; 0 means Options.K.
 	K int
+	// Exclude, when set, names keys never to offer (a librarian's blocks):
+	// such candidates are dropped with the other filters, before scoring,
+	// so the next best take their places. nil excludes nothing.
+	Exclude func(key string) bool
 }
 
 // Engine makes suggestions from one association table. It is immutable and

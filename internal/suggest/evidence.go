@@ -44,6 +44,9 @@ type Evidence struct {
 	BestPair string  `json:"best_pair,omitempty"`
 	LLR      float64 `json:"llr,omitempty"`
 	NPMI     float64 `json:"npmi,omitempty"`
+	// Rule is the ID of the librarian's rule that offered it (sources
+	// "rule:pin", "rule:relate", "rule:broader", "rule:narrower"), if any.
+	Rule string `json:"rule,omitempty"`
 }
 
 // Keys returns the terms of suggestions, in order, for Expand.

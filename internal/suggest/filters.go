@@ -11,6 +11,7 @@ import (
 
 // Reasons a candidate is dropped, in the order the filters run.
 const (
+	rejExcluded = "excluded" // the request excludes it (a librarian's block)
 	rejStopword = "stopword" // a word of it is a stopword (stem or surface form)
 	rejQuery    = "query"    // the query's own term or stem variant
 	rejNumber   = "number"   // a bare number
@@ -59,6 +60,7 @@ func (r *run) filter() {
 
 // reject returns why cd is dropped, or "" when it passes. The filters:
 //
+//   - excluded: the request's Exclude says so (a librarian's block);
 //   - stopword: any word whose stem is a stopword of the configured
 //     language (the text pipeline's list); the displayed form is checked
 //     the same way when a candidate is about to be chosen (selectMMR);
@@ -77,6 +79,9 @@ func (r *run) filter() {
 //     are such generic words.
 func (e *Engine) reject(r *run, cd *cand) string {
 	o := &e.opt
+	if r.req.Exclude != nil && r.req.Exclude(cd.key) {
+		return rejExcluded
+	}
 	for _, w := range cd.words {
 		if e.stop.Has(w) {
 			return rejStopword

@@ -70,13 +70,16 @@ func (s *Server) trusted(c *gin.Context, id Identity) bool {
 		got := c.GetHeader(id.SecretHeader)
 		return subtle.ConstantTimeCompare([]byte(got), []byte(id.Secret)) == 1
 	}
-	if id.TrustLoopback {
-		host, _, err := net.SplitHostPort(c.Request.RemoteAddr)
-		if err != nil {
-			return false
-		}
-		ip := net.ParseIP(host)
-		return ip != nil && ip.IsLoopback()
+	return id.TrustLoopback && loopback(c.Request.RemoteAddr)
+}
+
+// loopback reports whether a request's remote address (host:port) is in
+// 127.0.0.0/8 or ::1.
+func loopback(remoteAddr string) bool {
+	host, _, err := net.SplitHostPort(remoteAddr)
+	if err != nil {
+		return false
 	}
-	return false
+	ip := net.ParseIP(host)
+	return ip != nil && ip.IsLoopback()
 }

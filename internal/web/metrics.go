@@ -18,6 +18,7 @@ type metrics struct {
 	accepted    prometheus.Counter
 	events      *prometheus.CounterVec
 	storeErrors prometheus.Counter
+	reloads     *prometheus.CounterVec
 }
 
 func newMetrics(reg *prometheus.Registry) *metrics {
@@ -29,8 +30,12 @@ func newMetrics(reg *prometheus.Registry) *metrics {
 		accepted:    prometheus.NewCounter(prometheus.CounterOpts{Name: "kinword_suggestion_accepts_total", Help: "Accepted terms searched with."}),
 		events:      prometheus.NewCounterVec(prometheus.CounterOpts{Name: "kinword_events_total", Help: "Interaction events committed, by kind."}, []string{"kind"}),
 		storeErrors: prometheus.NewCounter(prometheus.CounterOpts{Name: "kinword_store_errors_total", Help: "Event batches the store could not commit."}),
+		reloads:     prometheus.NewCounterVec(prometheus.CounterOpts{Name: "kinword_reload_total", Help: "Reloads of the index snapshot and association table (route or SIGHUP), by result."}, []string{"result"}),
 	}
-	reg.MustRegister(m.requests, m.latency, m.impressions, m.accepted, m.events, m.storeErrors, prometheus.NewGoCollector(), prometheus.NewProcessCollector(prometheus.ProcessCollectorOpts{}))
+	for _, r := range []string{"ok", "failed"} {
+		m.reloads.WithLabelValues(r) // both series exist from the start, at 0
+	}
+	reg.MustRegister(m.requests, m.latency, m.impressions, m.accepted, m.events, m.storeErrors, m.reloads, prometheus.NewGoCollector(), prometheus.NewProcessCollector(prometheus.ProcessCollectorOpts{}))
 	return m
 }
 

@@ -3,6 +3,7 @@ package web
 import (
 	"encoding/json"
 	"io/fs"
+	"regexp"
 	"sort"
 	"strings"
 	"testing"
@@ -41,7 +42,7 @@ func TestOpenAPIMatchesRouteTable(t *testing.T) {
 	want := map[string]Role{}
 	for _, r := range s.routes() {
 		if strings.HasPrefix(r.Path, "/api/") {
-			want[strings.ToLower(r.Method)+" "+r.Path] = r.Role
+			want[strings.ToLower(r.Method)+" "+openAPIPath(r.Path)] = r.Role
 		}
 	}
 	got := map[string]json.RawMessage{}
@@ -57,10 +58,19 @@ func TestOpenAPIMatchesRouteTable(t *testing.T) {
 			continue
 		}
 		var o struct {
-			Security []map[string][]string `json:"security"`
+			Security  []map[string][]string      `json:"security"`
+			Responses map[string]json.RawMessage `json:"responses"`
 		}
 		if err := json.Unmarshal(op, &o); err != nil {
 			t.Fatal(err)
+		}
+		if role == RoleLibrarian || role == RoleAdmin {
+			// A token route says how it refuses (RFC 6750 section 3.1).
+			for _, code := range []string{"401", "403"} {
+				if _, ok := o.Responses[code]; !ok {
+					t.Errorf("%s (role %s) does not describe its %s response", k, role, code)
+				}
+			}
 		}
 		var names []string
 		for _, req := range o.Security {
@@ -84,3 +94,11 @@ func TestOpenAPIMatchesRouteTable(t *testing.T) {
 		}
 	}
 }
+
+// ginParam is a gin path parameter (:name or *name).
+var ginParam = regexp.MustCompile(`[:*]([A-Za-z_][A-Za-z0-9_]*)`)
+
+// openAPIPath writes a gin route pattern as an OpenAPI path template
+// ("/documents/*id" becomes "/documents/{id}"; OpenAPI 3.0.3, "Path
+// Templating").
+func openAPIPath(p string) string { return ginParam.ReplaceAllString(p, "{$1}") }

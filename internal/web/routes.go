@@ -39,5 +39,8 @@ func (s *Server) routes() []Route {
 		{http.MethodGet, "/api/v1/whoami", RoleSearcher, "the viewer the server sees, and demo personas", s.whoami},
 		{http.MethodPost, "/api/v1/signals", RoleSearcher, "record a batch of interaction events (202 once committed)", s.signals},
 		{http.MethodGet, "/api/v1/openapi.json", RolePublic, "the OpenAPI 3 description of this API", s.openapi},
+		{http.MethodPost, "/api/v1/documents", RoleAdmin, "add or replace a batch of documents; searchable once answered", s.putDocuments},
+		{http.MethodDelete, "/api/v1/documents/*id", RoleAdmin, "delete one document by ID (the ID may contain slashes)", s.deleteDocument},
+		{http.MethodPost, "/api/v1/reload", RoleAdmin, "reload the index snapshot and the association table, swapped in at once", s.reload},
 	}
 }

@@ -28,7 +28,10 @@ type Options struct {
 	// Identity says how requests are mapped to viewers.
 	Identity Identity
 	// Demo lets a visitor pick a department persona (kinword demo only);
-	// the page says so.
+	// the page says so. DEMO ONLY: it also grants admin to callers from
+	// the loopback address that send no token, so the demo's librarian and
+	// admin pages work without setup (see authorize). Never set it for a
+	// real deployment.
 	Demo bool
 	// Personas are the departments offered in demo mode.
 	Personas []Persona
@@ -38,6 +41,10 @@ type Options struct {
 	// Events records interaction events; nil means the server records none
 	// (the signals route answers 503).
 	Events EventSink
+	// Tokens are the API tokens for the librarian and admin routes, kept as
+	// SHA-256 hashes; none means those routes answer 401 (outside demo
+	// mode).
+	Tokens []Token
 	// ShutdownGrace bounds the drain of in-flight requests; default 10 s.
 	ShutdownGrace time.Duration
 	// Log receives request errors and lifecycle lines; default slog.Default().
@@ -53,11 +60,14 @@ type Persona struct {
 
 // Server serves the API and the page.
 type Server struct {
-	f       *finder.Finder
-	opts    Options
-	engine  *gin.Engine
-	metrics *metrics
-	assets  fs.FS
+	f        *finder.Finder
+	docs     Documents
+	reloader Reloader
+	tokens   *tokenSet
+	opts     Options
+	engine   *gin.Engine
+	metrics  *metrics
+	assets   fs.FS
 }
 
 // New builds a server; it fails if an embedded asset is missing.
@@ -76,11 +86,18 @@ func New(f *finder.Finder, opts Options) (*Server, error) {
 			return nil, fmt.Errorf("web: missing embedded asset %s: %w", a, err)
 		}
 	}
+	tokens, err := newTokenSet(opts.Tokens)
+	if err != nil {
+		return nil, err
+	}
 	gin.SetMode(gin.ReleaseMode)
-	s := &Server{f: f, opts: opts, engine: gin.New(), metrics: newMetrics(prometheus.NewRegistry()), assets: static.FS}
+	s := &Server{f: f, docs: f, reloader: f, tokens: tokens, opts: opts, engine: gin.New(), metrics: newMetrics(prometheus.NewRegistry()), assets: static.FS}
 	s.engine.Use(gin.Recovery(), s.securityHeaders(), s.cors(), s.observe())
 	for _, r := range s.routes() {
-		s.engine.Handle(r.Method, r.Path, r.Handler)
+		if r.Role.rank() < 0 {
+			return nil, fmt.Errorf("web: route %s %s has unknown role %q", r.Method, r.Path, r.Role)
+		}
+		s.engine.Handle(r.Method, r.Path, s.authorize(r.Role), r.Handler)
 	}
 	s.engine.NoRoute(func(c *gin.Context) { apiError(c, http.StatusNotFound, "not_found", "no such route") })
 	return s, nil

@@ -1,0 +1,127 @@
+package finder
+
+import (
+	"context"
+	"fmt"
+	"math/rand/v2"
+	"os"
+	"slices"
+	"sort"
+	"testing"
+	"time"
+
+	"kinword/internal/access"
+	"kinword/internal/index"
+	"kinword/internal/text"
+)
+
+// BenchmarkLatency compares, on the same queries in the same run, plain
+// BM25 top-10, search with suggestions (what the search page asks for),
+// and the search a searcher gets after accepting five suggestions. It
+// needs a data folder from `kinword ingest` and `kinword mine` in
+// KINWORD_BENCH_DATA (e.g. the 100,000-document synthetic corpus of
+// `kinword gen --docs 100000 --seed 7`); without it, it skips. Queries are
+// 1 to 3 words drawn with a fixed seed from the terms of the corpus's
+// documents. Each sub-benchmark reports the median and p99 per query in
+// ms; the cache is off so every request computes its suggestions.
+//
+//	KINWORD_BENCH_DATA=/tmp/k100k go test ./internal/finder -run XXX -bench Latency -benchtime 2000x
+func BenchmarkLatency(b *testing.B) {
+	dir := os.Getenv("KINWORD_BENCH_DATA")
+	if dir == "" {
+		b.Skip("KINWORD_BENCH_DATA is not set: give it a data folder of `kinword ingest` and `kinword mine`")
+	}
+	ctx := context.Background()
+	p, _ := text.NewPipeline("")
+	f, err := Open(ctx, dir, p, Options{CacheTTL: time.Nanosecond})
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer f.Close()
+	v := access.Anonymous
+	view := f.ix.View(v)
+	queries, accepted := benchQueries(b, f, view)
+	parsed := make([][]index.QueryTerm, len(queries))
+	for i, q := range queries {
+		if parsed[i], err = index.ParseQuery(p, q, f.opts.Limits); err != nil {
+			b.Fatal(err)
+		}
+	}
+	measure := func(b *testing.B, one func(i int)) {
+		lat := make([]time.Duration, 0, b.N)
+		b.ResetTimer()
+		for i := range b.N {
+			t0 := time.Now()
+			one(i % len(queries))
+			lat = append(lat, time.Since(t0))
+		}
+		b.StopTimer()
+		slices.Sort(lat)
+		b.ReportMetric(float64(lat[len(lat)/2].Microseconds())/1000, "p50-ms")
+		b.ReportMetric(float64(lat[len(lat)*99/100].Microseconds())/1000, "p99-ms")
+	}
+	b.Run("search", func(b *testing.B) {
+		measure(b, func(i int) {
+			if _, err := view.Search(ctx, parsed[i], f.opts.BM25, 10); err != nil {
+				b.Fatal(err)
+			}
+		})
+	})
+	b.Run("suggestions", func(b *testing.B) {
+		measure(b, func(i int) {
+			if _, err := f.Search(ctx, Request{Query: queries[i], Viewer: v}); err != nil {
+				b.Fatal(err)
+			}
+		})
+	})
+	b.Run("search-with-suggestions", func(b *testing.B) {
+		measure(b, func(i int) {
+			if _, err := f.Search(ctx, Request{Query: queries[i], Viewer: v, WithResults: true}); err != nil {
+				b.Fatal(err)
+			}
+		})
+	})
+	b.Run("expanded-5", func(b *testing.B) {
+		measure(b, func(i int) {
+			if _, err := f.Search(ctx, Request{Query: queries[i], Viewer: v, WithResults: true, Accepted: accepted[i]}); err != nil {
+				b.Fatal(err)
+			}
+		})
+	})
+}
+
+// benchQueries draws 500 queries of 1-3 words (fixed seed) from document
+// terms, with the five suggestions each gets as its accepted terms.
+func benchQueries(b *testing.B, f *Finder, view *index.View) ([]string, [][]string) {
+	rng := rand.New(rand.NewPCG(7, 7))
+	var qs []string
+	var acc [][]string
+	for len(qs) < 500 {
+		d := uint32(rng.IntN(view.NumDocs()))
+		tv := view.TermVector(d)
+		if len(tv) < 10 {
+			continue
+		}
+		sort.Slice(tv, func(i, j int) bool { return tv[i].TF > tv[j].TF })
+		n := 1 + rng.IntN(3)
+		q := ""
+		for k := range n {
+			q += " " + view.Display(view.Term(tv[rng.IntN(min(10, len(tv)))].Term))
+			_ = k
+		}
+		res, err := f.Search(context.Background(), Request{Query: q, Viewer: access.Anonymous})
+		if err != nil || len(res.Suggestions) == 0 {
+			continue
+		}
+		var keys []string
+		for _, s := range res.Suggestions {
+			keys = append(keys, s.Term)
+		}
+		qs = append(qs, q)
+		acc = append(acc, keys)
+	}
+	if len(qs) == 0 {
+		b.Fatal(fmt.Errorf("no queries"))
+	}
+	return qs, acc
+}
