@@ -70,7 +70,7 @@ func ReadOfficeSources(dir string) ([]OfficeSource, error) {
 
 func parseSource(b []byte) (OfficeSource, error) {
 	var s OfficeSource
-	text := strings.ReplaceAll(string(b), "\r\n", "\n")
+	text := strings.ReplaceAll(strings.ToValidUTF8(string(b), "\uFFFD"), "\r\n", "\n") // fpdf panics on invalid UTF-8
 	if strings.HasPrefix(text, "---\n") {
 		end := strings.Index(text[4:], "\n---")
 		if end < 0 {

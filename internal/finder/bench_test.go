@@ -33,7 +33,7 @@ func BenchmarkLatency(b *testing.B) {
 	}
 	ctx := context.Background()
 	p, _ := text.NewPipeline("")
-	f, err := Open(ctx, dir, p, Options{CacheTTL: time.Nanosecond})
+	f, err := Open(ctx, dir, p, Options{CacheTTL: -1})
 	if err != nil {
 		b.Fatal(err)
 	}

@@ -49,7 +49,8 @@ type Options struct {
 	// query's strongest term; default 0 means suggest's default (0.3).
 	AcceptWeight float64
 	// CacheTTL is how long a suggestion list is reused for the same viewer
-	// scope and query; default 30 s (the refresh interval).
+	// scope and query; default 30 s (the refresh interval); negative: never
+	// reused (every request computes its suggestions).
 	CacheTTL time.Duration
 }
 
@@ -66,7 +67,7 @@ func (o Options) resolve() Options {
 	if o.Suggestions <= 0 {
 		o.Suggestions = 5
 	}
-	if o.CacheTTL <= 0 {
+	if o.CacheTTL == 0 {
 		o.CacheTTL = 30 * time.Second
 	}
 	o.BM25 = o.BM25.Resolve()
@@ -88,8 +89,10 @@ type Finder struct {
 	st    atomic.Pointer[state]
 	model atomic.Pointer[prefs.Model]
 	rules atomic.Pointer[curate.Set]
-	cache *gocache.Cache
-	wmu   sync.Mutex // serialises document pushes: each is written and committed whole
+	// noCache: CacheTTL was negative, suggestion lists are never reused.
+	noCache bool
+	cache   *gocache.Cache
+	wmu     sync.Mutex // serialises document pushes: each is written and committed whole
 }
 
 // SetModel publishes a new learned model (nil switches learning off) and
@@ -129,7 +132,11 @@ func Open(ctx context.Context, dataDir string, p *text.Pipeline, opts Options) (
 	}
 	ix.Warm()
 	f := &Finder{ix: ix, opts: opts.resolve(), table: filepath.Join(dataDir, "assoc.kwa")}
-	f.cache = gocache.New(f.opts.CacheTTL, 2*f.opts.CacheTTL)
+	ttl := f.opts.CacheTTL
+	if ttl < 0 { // no reuse: the cache stays empty (benchmarks)
+		f.noCache, ttl = true, time.Minute
+	}
+	f.cache = gocache.New(ttl, 2*ttl)
 	if err := f.Reload(ctx); err != nil {
 		ix.Close()
 		return nil, err

@@ -152,7 +152,7 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 // viewer scope, query and accepted terms.
 func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []index.QueryTerm, accepted []string, res index.Result, impression, salt string, eff curate.Effect) []suggest.Suggestion {
 	key := v.Key() + "\x00" + canonical(q) + "\x00" + strings.Join(accepted, "|") + "\x00" + salt
-	if c, ok := f.cache.Get(key); ok {
+	if c, ok := f.cache.Get(key); ok && !f.noCache {
 		return c.([]suggest.Suggestion)
 	}
 	sq := toSuggest(q)
@@ -183,7 +183,9 @@ func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []in
 	if sugs == nil {
 		sugs = []suggest.Suggestion{}
 	}
-	f.cache.SetDefault(key, sugs)
+	if !f.noCache {
+		f.cache.SetDefault(key, sugs)
+	}
 	return sugs
 }
 

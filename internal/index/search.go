@@ -60,45 +60,6 @@ func (w *View) postings(key string) (docs, tfs []uint32) {
 	return w.phrasePostings(parts)
 }
 
-// phrasePostings finds documents where the parts occur as consecutive
-// indexed tokens, with the number of occurrences.
-func (w *View) phrasePostings(parts []string) (docs, tfs []uint32) {
-	ids := make([]uint32, len(parts))
-	rarest := 0
-	for i, p := range parts {
-		id, ok := w.s.termID[p]
-		if !ok {
-			return nil, nil
-		}
-		ids[i] = id
-		if w.s.off[id+1]-w.s.off[id] < w.s.off[ids[rarest]+1]-w.s.off[ids[rarest]] {
-			rarest = i
-		}
-	}
-	r := ids[rarest]
-	for _, d := range w.s.pdocs[w.s.off[r]:w.s.off[r+1]] {
-		toks := w.s.docs[d].Tokens
-		n := uint32(0)
-		for i := 0; i+len(ids) <= len(toks); i++ {
-			match := true
-			for j, id := range ids {
-				if toks[i+j] != id {
-					match = false
-					break
-				}
-			}
-			if match {
-				n++
-			}
-		}
-		if n > 0 {
-			docs = append(docs, d)
-			tfs = append(tfs, n)
-		}
-	}
-	return docs, tfs
-}
-
 // KeyDF returns the readable document frequency of a stem or phrase key.
 func (w *View) KeyDF(key string) int {
 	docs, _ := w.postings(key)

@@ -41,8 +41,9 @@ type snapshot struct {
 	dfTotal  []uint32
 	surf     map[string]*text.Surfaces
 
-	scopes sync.Map // access.Viewer groups key -> *scope
-	accs   sync.Pool
+	scopes  sync.Map // access.Viewer groups key -> *scope
+	accs    sync.Pool
+	phrases phraseCache // phrase postings, computed on first use
 }
 
 // buildSnapshot derives a snapshot from the forward store.
