@@ -63,6 +63,9 @@ func runSimulate(ctx context.Context, e *env, args []string) error {
 		return fmt.Errorf("simulate: %w (run kinword demo first)", err)
 	}
 	defer f.Close()
+	if f.Status().Documents == 0 {
+		return fmt.Errorf("simulate: no documents in %s (run kinword demo first, or give --data)", e.dataDir)
+	}
 	depts := simDepartments(j, p)
 	rng := rand.New(rand.NewPCG(*seed, *seed+1))
 	var events []prefs.Event

@@ -12,6 +12,7 @@ import (
 
 	"kinword/internal/access"
 	"kinword/internal/index"
+	"kinword/internal/suggest"
 	"kinword/internal/text"
 )
 
@@ -23,7 +24,12 @@ import (
 // `kinword gen --docs 100000 --seed 7`); without it, it skips. Queries are
 // 1 to 3 words drawn with a fixed seed from the terms of the corpus's
 // documents. Each sub-benchmark reports the median and p99 per query in
-// ms; the cache is off so every request computes its suggestions.
+// ms; the suggestion cache is off so every request computes its
+// suggestions. search and expanded-5-search are retrieval alone (BM25
+// top-10, the query as typed and with five accepted terms added);
+// suggestions is the finder's suggestion path without results;
+// search-with-suggestions and expanded-5 are whole page requests (results
+// with snippets and suggestions).
 //
 //	KINWORD_BENCH_DATA=/tmp/k100k go test ./internal/finder -run XXX -bench Latency -benchtime 2000x
 func BenchmarkLatency(b *testing.B) {
@@ -77,6 +83,19 @@ func BenchmarkLatency(b *testing.B) {
 	b.Run("search-with-suggestions", func(b *testing.B) {
 		measure(b, func(i int) {
 			if _, err := f.Search(ctx, Request{Query: queries[i], Viewer: v, WithResults: true}); err != nil {
+				b.Fatal(err)
+			}
+		})
+	})
+	expanded := make([][]index.QueryTerm, len(queries))
+	for i := range queries {
+		for _, t := range suggest.Expand(toSuggest(parsed[i]), accepted[i], f.opts.AcceptWeight) {
+			expanded[i] = append(expanded[i], index.QueryTerm{Key: t.Key, Weight: t.Weight})
+		}
+	}
+	b.Run("expanded-5-search", func(b *testing.B) {
+		measure(b, func(i int) {
+			if _, err := view.Search(ctx, expanded[i], f.opts.BM25, 10); err != nil {
 				b.Fatal(err)
 			}
 		})

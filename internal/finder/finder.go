@@ -43,6 +43,16 @@ type Options struct {
 	// FeedbackDocs is how many of the viewer's top results feed the
 	// suggestions; default 10.
 	FeedbackDocs int
+	// FeedbackPool is how many top results the feedback documents are
+	// chosen from; default 50 (at least FeedbackDocs).
+	FeedbackPool int
+	// DepartmentDocs: when learning is on and at least this many of the
+	// FeedbackPool top results come from the searcher's own department,
+	// the candidate pool learning ranks also holds suggestions drawn from
+	// those documents alone, so an ambiguous query ("leak", "outage") can
+	// learn its department's sense even when another department's
+	// documents rank first. Default 2; negative: off.
+	DepartmentDocs int
 	// Suggestions is the number of suggested terms; default 5.
 	Suggestions int
 	// AcceptWeight is the weight of an accepted term relative to the
@@ -63,6 +73,13 @@ func (o Options) resolve() Options {
 	}
 	if o.FeedbackDocs <= 0 {
 		o.FeedbackDocs = 10
+	}
+	if o.FeedbackPool <= 0 {
+		o.FeedbackPool = 50
+	}
+	o.FeedbackPool = max(o.FeedbackPool, o.FeedbackDocs)
+	if o.DepartmentDocs == 0 {
+		o.DepartmentDocs = 2
 	}
 	if o.Suggestions <= 0 {
 		o.Suggestions = 5

@@ -92,6 +92,14 @@ type Request struct {
 	// such candidates are dropped with the other filters, before scoring,
 	// so the next best take their places. nil excludes nothing.
 	Exclude func(key string) bool
+	// MinShare, when not 0, replaces Options.MinShare for this request (a
+	// negative value means 0): a caller that re-ranks a wide pool, as
+	// learning does, asks for weaker candidates too.
+	MinShare float64
+	// StrongCandidates, when not 0, replaces Options.StrongCandidates for
+	// this request (negative: 0): a wide pool for learning also holds the
+	// mined phrases of more of its single-word candidates.
+	StrongCandidates int
 }
 
 // Engine makes suggestions from one association table. It is immutable and

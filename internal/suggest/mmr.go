@@ -135,7 +135,11 @@ func (r *run) selectMMR(pool []*cand, k int) []*cand {
 	o := &r.e.opt
 	best := pool[0].score
 	n := 0
-	for n < len(pool) && pool[n].score/best >= o.MinShare {
+	minShare := o.MinShare
+	if r.req.MinShare != 0 {
+		minShare = max(r.req.MinShare, 0)
+	}
+	for n < len(pool) && pool[n].score/best >= minShare {
 		n++
 	}
 	rest := slices.Clone(pool[:n])

@@ -48,7 +48,11 @@ func (r *run) addPhrase(p assoc.Phrase, by string) *cand {
 // ("main" and "break" both strong: "main break"). The new phrases go
 // through the filters too.
 func (r *run) strongPhraseCandidates() {
-	if r.e.tbl == nil || r.e.opt.StrongCandidates == 0 {
+	strongN := r.e.opt.StrongCandidates
+	if r.req.StrongCandidates != 0 {
+		strongN = max(r.req.StrongCandidates, 0)
+	}
+	if r.e.tbl == nil || strongN == 0 {
 		return
 	}
 	prelim := r.prelimScores()
@@ -64,7 +68,7 @@ func (r *run) strongPhraseCandidates() {
 		}
 		return strings.Compare(a.key, b.key)
 	})
-	singles = singles[:min(len(singles), r.e.opt.StrongCandidates)]
+	singles = singles[:min(len(singles), strongN)]
 	strong := map[string]bool{}
 	for _, cd := range singles {
 		strong[cd.key] = true
