@@ -110,9 +110,9 @@
       var a = text("a", r.title, "kw-title");
       a.href = r.url || "#";
       a.addEventListener("click", function () {
-        if (state.accepted.length) {
-          signal({ kind: "click", doc: r.id, rank: r.rank, terms: state.accepted.map(function (x) { return x.term; }) });
-        }
+        // Every result click is implicit feedback (the server learns from
+        // the snippet shown); rank is 0-based, as the events API says.
+        signal({ kind: "click", doc: r.id, rank: r.rank - 1, terms: state.accepted.map(function (x) { return x.term; }) });
       });
       li.appendChild(a);
       li.appendChild(text("span", r.department, "kw-dept"));

@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"log/slog"
+	"strings"
 	"time"
 
 	"kinword/internal/finder"
@@ -23,15 +24,50 @@ func toPrefs(e store.Event) (prefs.Event, bool) {
 		Query: e.Query, Term: e.Term, Position: e.Position, Shown: e.Terms}, true
 }
 
+// snippetCache keeps the snippet stems of clicked results between
+// refreshes (a snippet depends only on the document, the query and the
+// accepted terms), bounded: past maxSnippets entries it starts again.
+type snippetCache map[string][]string
+
+const maxSnippets = 200_000
+
+// stems returns the snippet stems of a click event, computing them once.
+func (c *snippetCache) stems(ctx context.Context, f *finder.Finder, e store.Event) ([]string, error) {
+	key := e.Doc + "\x00" + e.Query + "\x00" + strings.Join(e.Terms, "|")
+	if s, ok := (*c)[key]; ok {
+		return s, nil
+	}
+	s, err := f.SnippetStems(ctx, e.Doc, e.Query, e.Terms)
+	if err != nil {
+		return nil, err
+	}
+	if len(*c) >= maxSnippets {
+		*c = snippetCache{}
+	}
+	(*c)[key] = s
+	return s, nil
+}
+
 // learnOnce rebuilds the learned model from the store's events of the
-// retention window and publishes it to the finder.
-func learnOnce(ctx context.Context, st *store.Store, f *finder.Finder, retention time.Duration, opts prefs.Options) (int, error) {
+// retention window and publishes it to the finder. Result clicks add the
+// stems of the snippet the searcher saw (implicit feedback from the text
+// shown, position-corrected in the model).
+func learnOnce(ctx context.Context, st *store.Store, f *finder.Finder, retention time.Duration, opts prefs.Options, snips *snippetCache) (int, error) {
 	now := time.Now().UTC()
 	b := prefs.NewBuilder(opts)
 	n := 0
 	err := st.Events(ctx, now.Add(-retention), func(e store.Event) error {
 		if pe, ok := toPrefs(e); ok {
 			b.Add(pe)
+			n++
+		}
+		if e.Kind == store.KindClick && e.Doc != "" && snips != nil {
+			stems, err := snips.stems(ctx, f, e)
+			if err != nil {
+				return err
+			}
+			b.AddSnippet(prefs.SnippetClick{Time: e.Time, Session: e.Session, Department: e.Department,
+				Query: e.Query, Doc: e.Doc, Rank: e.Rank, Stems: stems})
 			n++
 		}
 		return nil
@@ -49,8 +85,9 @@ func learnOnce(ctx context.Context, st *store.Store, f *finder.Finder, retention
 func learnLoop(ctx context.Context, log *slog.Logger, st *store.Store, f *finder.Finder, rules *rulesRefresher, every, retention time.Duration) {
 	t := time.NewTicker(every)
 	defer t.Stop()
+	snips := snippetCache{}
 	for {
-		if _, err := learnOnce(ctx, st, f, retention, prefs.Options{}); err != nil && ctx.Err() == nil {
+		if _, err := learnOnce(ctx, st, f, retention, prefs.Options{}, &snips); err != nil && ctx.Err() == nil {
 			log.Error("learning refresh failed; the previous model keeps serving", "err", err)
 		}
 		if rules != nil {

@@ -79,6 +79,7 @@ func (e *env) serve(ctx context.Context, addr string, demo bool) error {
 	go pruneLoop(ctx, e.log, st, retention)
 	opts := web.Options{Events: st, Addr: addr, Demo: demo, AllowedOrigins: e.cfg.Server.AllowedOrigins, Log: e.log, Tokens: tokens,
 		ShutdownGrace: time.Duration(e.cfg.Server.ShutdownGraceSeconds) * time.Second,
+		Rules:         curation{st: st}, Reviewer: curation{st: st}, Pipeline: p, RulesChanged: rulesNow(ctx, e.log, st, f, p),
 		Identity: web.Identity{DepartmentHeader: e.cfg.Server.DepartmentHeader, GroupsHeader: e.cfg.Server.GroupsHeader,
 			SecretHeader: e.cfg.Server.SecretHeader, Secret: os.Getenv("KINWORD_PROXY_SECRET"), TrustLoopback: e.cfg.Server.TrustLoopback},
 	}

@@ -191,6 +191,7 @@ func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []in
 		}
 	}
 	if m != nil {
+		sugs = withSnippets(view, m, v.Department, canonical(q), q, accepted, req.Exclude, sugs)
 		sugs = f.learnOrder(m, v.Department, canonical(q), sugs, impression)
 	}
 	sugs = applyRules(view, eff, q, accepted, sugs, f.opts.Suggestions)

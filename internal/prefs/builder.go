@@ -38,6 +38,8 @@ type Builder struct {
 	qtKeys []uint64
 	pairs  map[uint64]int32 // pack(ds, qt) → index into recs
 	recs   []pairRec
+
+	snippets []SnippetClick // result clicks with their snippets' stems
 }
 
 // NewBuilder returns an empty Builder; opts are completed with defaults.

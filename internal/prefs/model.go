@@ -12,6 +12,7 @@ type Model struct {
 	dept  table            // pack(dept, org index)
 	org   table            // pack(query, term)
 	qt    table            // pack(query term, term)
+	snip  snippetTable     // evidence from clicked results' snippets
 }
 
 // id is the interned id of s, or -1 if no event mentioned it.

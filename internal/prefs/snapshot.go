@@ -125,5 +125,6 @@ func (b *Builder) Snapshot(now time.Time) *Model {
 			}
 		}
 	}
-	return &Model{opts: b.opts, names: maps.Clone(b.names), dept: dept, org: org, qt: qt}
+	return &Model{opts: b.opts, names: maps.Clone(b.names), dept: dept, org: org, qt: qt,
+		snip: buildSnippets(b.snippets, b.opts, now)}
 }

@@ -11,7 +11,7 @@ import (
 )
 
 // requiredAssets must be embedded; New fails without them.
-var requiredAssets = []string{"index.html", "app.js", "brand.css", "widget.js", "openapi.json"}
+var requiredAssets = append([]string{"index.html", "app.js", "brand.css", "widget.js", "openapi.json"}, deskAssets...)
 
 func (s *Server) page(c *gin.Context) { s.serveAsset(c, "index.html") }
 

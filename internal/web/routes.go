@@ -42,5 +42,18 @@ func (s *Server) routes() []Route {
 		{http.MethodPost, "/api/v1/documents", RoleAdmin, "add or replace a batch of documents; searchable once answered", s.putDocuments},
 		{http.MethodDelete, "/api/v1/documents/*id", RoleAdmin, "delete one document by ID (the ID may contain slashes)", s.deleteDocument},
 		{http.MethodPost, "/api/v1/reload", RoleAdmin, "reload the index snapshot and the association table, swapped in at once", s.reload},
+		{http.MethodGet, "/api/v1/rules", RoleLibrarian, "every librarian rule and the rules version", s.listRules},
+		{http.MethodPost, "/api/v1/rules", RoleLibrarian, "create a rule, checked against the stored ones (409 on a contradiction)", s.createRule},
+		{http.MethodPut, "/api/v1/rules/:id", RoleLibrarian, "replace a rule at the version read (409 when stale)", s.updateRule},
+		{http.MethodDelete, "/api/v1/rules/:id", RoleLibrarian, "delete a rule at the version read (409 when stale)", s.deleteRule},
+		{http.MethodPost, "/api/v1/rules/preview", RoleLibrarian, "what a draft rule would do to the last 30 days of suggestions", s.previewRule},
+		{http.MethodGet, "/api/v1/rules/audit", RoleLibrarian, "the rule change log, newest first", s.ruleAudit},
+		{http.MethodPost, "/api/v1/rules/audit/:seq/revert", RoleLibrarian, "undo one logged change (409 when the rule changed since)", s.revertRule},
+		{http.MethodGet, "/api/v1/rules/export", RoleLibrarian, "every rule as CSV, N-Triples or JSON-LD (W3C SKOS)", s.exportRules},
+		{http.MethodPost, "/api/v1/rules/import", RoleLibrarian, "add or replace rules from a CSV, N-Triples or JSON-LD file, all or nothing", s.importRules},
+		{http.MethodGet, "/api/v1/review", RoleAdmin, "the review of suggestion quality for a window", s.reviewReport},
+		{http.MethodGet, "/api/v1/review/export", RoleAdmin, "one table of the review as CSV", s.reviewExport},
+		{http.MethodGet, "/librarian", RolePublic, "the vocabulary desk page (its data calls are role-checked)", s.librarianPage},
+		{http.MethodGet, "/admin", RolePublic, "the suggestion review page (its data calls are role-checked)", s.adminPage},
 	}
 }

@@ -18,6 +18,7 @@ import (
 	"github.com/prometheus/client_golang/prometheus"
 
 	"kinword/internal/finder"
+	"kinword/internal/text"
 	"kinword/static"
 )
 
@@ -45,6 +46,23 @@ type Options struct {
 	// SHA-256 hashes; none means those routes answer 401 (outside demo
 	// mode).
 	Tokens []Token
+	// Rules is the librarian rule store behind the /api/v1/rules routes;
+	// nil means those routes answer 503.
+	Rules RuleBook
+	// Reviewer builds the admin review behind the /api/v1/review routes;
+	// nil means those routes answer 503.
+	Reviewer Reviewer
+	// Departments are the department ids rules may name; empty accepts
+	// any.
+	Departments []string
+	// Pipeline analyses rule terms for validation and preview; nil means
+	// an English pipeline. Set it to the index's pipeline.
+	Pipeline *text.Pipeline
+	// RulesChanged, when set, is called after every successful rule
+	// change, before the answer is sent, so the server can apply the
+	// change at once instead of at its next refresh; keep it short (one
+	// store read and a compile).
+	RulesChanged func()
 	// ShutdownGrace bounds the drain of in-flight requests; default 10 s.
 	ShutdownGrace time.Duration
 	// Log receives request errors and lifecycle lines; default slog.Default().
