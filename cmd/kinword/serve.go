@@ -82,6 +82,7 @@ func (e *env) serve(ctx context.Context, addr string, demo bool) error {
 		Rules:         curation{st: st}, Reviewer: curation{st: st}, Pipeline: p, RulesChanged: rulesNow(ctx, e.log, st, f, p),
 		Identity: web.Identity{DepartmentHeader: e.cfg.Server.DepartmentHeader, GroupsHeader: e.cfg.Server.GroupsHeader,
 			SecretHeader: e.cfg.Server.SecretHeader, Secret: os.Getenv("KINWORD_PROXY_SECRET"), TrustLoopback: e.cfg.Server.TrustLoopback},
+		RateLimit: web.RateLimit{PerSecond: e.cfg.Server.RatePerSecond, Burst: e.cfg.Server.RateBurst}, MaxBodyBytes: e.cfg.Server.MaxBodyBytes, MaxQueryBytes: e.cfg.Search.MaxQueryBytes,
 	}
 	if demo {
 		opts.Personas = demoPersonas

@@ -62,6 +62,14 @@ type Server struct {
 	ShutdownGraceSeconds int `toml:"shutdown_grace_seconds"`
 	// RefreshSeconds is the suggestion cache lifetime; default 30.
 	RefreshSeconds int `toml:"refresh_seconds"`
+	// RatePerSecond is each client's request rate (requests per second,
+	// a token bucket; 429 beyond it); default 50; 0 turns limiting off.
+	RatePerSecond float64 `toml:"rate_per_second"`
+	// RateBurst is the token bucket's size (requests); default 100.
+	RateBurst int `toml:"rate_burst"`
+	// MaxBodyBytes bounds every request body (bytes; 413 beyond it);
+	// default and most 1048576 (1 MiB).
+	MaxBodyBytes int64 `toml:"max_body_bytes"`
 	// Tokens are the API tokens of the librarian and admin roles
 	// ([[server.tokens]]); default none. More may come from the file named
 	// by KINWORD_TOKENS_FILE (LoadTokensFile).
@@ -228,6 +236,11 @@ func Parse(b []byte, c *Config) error {
 	return nil
 }
 
+// originShape is the serialised form of a web origin (RFC 6454 section
+// 6.1) as a browser sends it in Origin: lower-case scheme and host, an
+// optional port, no path.
+var originShape = regexp.MustCompile(`^https?://[a-z0-9.\-]+(:[0-9]{1,5})?$|^https?://\[[0-9a-f:.]+\](:[0-9]{1,5})?$`)
+
 // Validate reports every invalid value at once.
 func (c Config) Validate() error {
 	var errs []error
@@ -279,7 +292,18 @@ func (c Config) Validate() error {
 	for _, o := range c.Server.AllowedOrigins {
 		if !strings.HasPrefix(o, "http://") && !strings.HasPrefix(o, "https://") {
 			bad("server.allowed_origins", "%q must start with http:// or https://", o)
+		} else if !originShape.MatchString(o) {
+			bad("server.allowed_origins", "%q is not scheme://host[:port] in lower case (no path, not even /)", o)
 		}
+	}
+	if !(c.Server.RatePerSecond >= 0 && c.Server.RatePerSecond <= 100000) {
+		bad("server.rate_per_second", "%v is outside 0..100000", c.Server.RatePerSecond)
+	}
+	if c.Server.RateBurst < 1 || c.Server.RateBurst > 1000000 {
+		bad("server.rate_burst", "%d is outside 1..1000000", c.Server.RateBurst)
+	}
+	if c.Server.MaxBodyBytes < 1024 || c.Server.MaxBodyBytes > 1<<20 {
+		bad("server.max_body_bytes", "%d is outside 1024..1048576", c.Server.MaxBodyBytes)
 	}
 	if c.Server.ShutdownGraceSeconds < 1 || c.Server.ShutdownGraceSeconds > 300 {
 		bad("server.shutdown_grace_seconds", "%d is outside 1..300", c.Server.ShutdownGraceSeconds)

@@ -28,8 +28,9 @@ import (
 // suggestions. search and expanded-5-search are retrieval alone (BM25
 // top-10, the query as typed and with five accepted terms added);
 // suggestions is the finder's suggestion path without results;
-// search-with-suggestions and expanded-5 are whole page requests (results
-// with snippets and suggestions).
+// suggest-engine is the suggestion engine alone over first-pass results
+// computed beforehand; search-with-suggestions and expanded-5 are whole
+// page requests (results with snippets and suggestions).
 //
 //	KINWORD_BENCH_DATA=/tmp/k100k go test ./internal/finder -run XXX -bench Latency -benchtime 2000x
 func BenchmarkLatency(b *testing.B) {
@@ -78,6 +79,22 @@ func BenchmarkLatency(b *testing.B) {
 			if _, err := f.Search(ctx, Request{Query: queries[i], Viewer: v}); err != nil {
 				b.Fatal(err)
 			}
+		})
+	})
+	// The suggestion engine alone, over first-pass results computed
+	// beforehand: the cost suggestions add to a search.
+	first := make([][]suggest.Hit, len(queries))
+	for i := range queries {
+		res, err := view.Search(ctx, parsed[i], f.opts.BM25, f.opts.FeedbackDocs)
+		if err != nil {
+			b.Fatal(err)
+		}
+		first[i] = feedback(res.Hits, f.opts.FeedbackDocs)
+	}
+	eng := f.st.Load().eng
+	b.Run("suggest-engine", func(b *testing.B) {
+		measure(b, func(i int) {
+			eng.Suggest(view, suggest.Request{Query: toSuggest(parsed[i]), Viewer: v, Feedback: first[i], K: f.opts.Suggestions})
 		})
 	})
 	b.Run("search-with-suggestions", func(b *testing.B) {

@@ -54,11 +54,13 @@ func (s *Store) Append(ctx context.Context, batch []Event) error {
 	s.mu.RLock()
 	if s.closed {
 		s.mu.RUnlock()
-		return fmt.Errorf("store: append: %w: store closed", ErrUnavailable)
+		return fmt.Errorf("store: append: %w: %w", ErrUnavailable, errClosed)
 	}
+	s.queued.Add(1)
 	select {
 	case s.reqs <- r:
 	case <-ctx.Done():
+		s.queued.Add(-1)
 		s.mu.RUnlock()
 		return fmt.Errorf("store: append: %w", ctx.Err())
 	}
@@ -76,6 +78,7 @@ func (s *Store) Append(ctx context.Context, batch []Event) error {
 func (s *Store) run() {
 	defer close(s.stopped)
 	for first := range s.reqs {
+		s.queued.Add(-1)
 		s.commitGroup(s.gather(first))
 	}
 }
@@ -96,6 +99,7 @@ func (s *Store) gather(first *request) []*request {
 				if !ok {
 					return group
 				}
+				s.queued.Add(-1)
 				group = append(group, r)
 				continue
 			default:
@@ -107,6 +111,7 @@ func (s *Store) gather(first *request) []*request {
 			if !ok {
 				return group
 			}
+			s.queued.Add(-1)
 			group = append(group, r)
 		case <-timeout:
 			return group

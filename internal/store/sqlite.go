@@ -59,13 +59,16 @@ var sqlitePragmas = []string{
 	"foreign_keys(1)",
 }
 
-func openSQLite(ctx context.Context, path string) (*sql.DB, dialect, error) {
+func openSQLite(ctx context.Context, path string, maxPages int) (*sql.DB, dialect, error) {
 	if path == "" {
 		return nil, dialect{}, fmt.Errorf("store: open sqlite: %w: empty path", ErrInvalid)
 	}
 	v := url.Values{}
 	for _, p := range sqlitePragmas {
 		v.Add("_pragma", p)
+	}
+	if maxPages > 0 {
+		v.Add("_pragma", "max_page_count("+strconv.Itoa(maxPages)+")")
 	}
 	// BEGIN IMMEDIATE: a write transaction takes the write lock up front,
 	// so busy_timeout applies instead of a lock-upgrade deadlock.

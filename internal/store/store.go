@@ -73,6 +73,16 @@ type Options struct {
 	MaxWait time.Duration
 	// WriteTimeout bounds one group transaction, in wall time. Default 15s.
 	WriteTimeout time.Duration
+	// RetryAfter is how long clients are told to wait after
+	// ErrUnavailable before retrying (see RetryAfter). Default 5s.
+	RetryAfter time.Duration
+	// SQLiteMaxPages caps the SQLite database at this many pages
+	// (PRAGMA max_page_count, set on every connection; pages are 4096
+	// bytes by default). A write past the cap fails with SQLITE_FULL,
+	// reported as ErrUnavailable of kind FailDiskFull, until pages are
+	// freed (Prune). It also lets tests make a real "disk full". Default
+	// 0: no cap beyond SQLite's own. Ignored for PostgreSQL.
+	SQLiteMaxPages int
 }
 
 // Store is an open event store. It is safe for concurrent use.
@@ -88,6 +98,7 @@ type Store struct {
 
 	groups  atomic.Int64 // group transactions attempted (tests, diagnostics)
 	batches atomic.Int64 // batches taken by the writer
+	queued  atomic.Int64 // batches handed to Append and not yet taken by the writer (QueueDepth)
 }
 
 // Open opens (and migrates) the store named by dsn: "sqlite:PATH" or
@@ -104,6 +115,9 @@ func OpenWith(ctx context.Context, dsn string, opts Options) (*Store, error) {
 	if opts.WriteTimeout <= 0 {
 		opts.WriteTimeout = 15 * time.Second
 	}
+	if opts.RetryAfter <= 0 {
+		opts.RetryAfter = 5 * time.Second
+	}
 	var (
 		db  *sql.DB
 		d   dialect
@@ -111,7 +125,7 @@ func OpenWith(ctx context.Context, dsn string, opts Options) (*Store, error) {
 	)
 	switch {
 	case strings.HasPrefix(dsn, "sqlite:"):
-		db, d, err = openSQLite(ctx, strings.TrimPrefix(dsn, "sqlite:"))
+		db, d, err = openSQLite(ctx, strings.TrimPrefix(dsn, "sqlite:"), opts.SQLiteMaxPages)
 	case strings.HasPrefix(dsn, "postgres://"), strings.HasPrefix(dsn, "postgresql://"):
 		db, d, err = openPostgres(ctx, dsn)
 	default:

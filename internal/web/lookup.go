@@ -2,9 +2,9 @@ package web
 
 import (
 	"errors"
+	"fmt"
 	"net/http"
 	"strings"
-	"unicode/utf8"
 
 	"github.com/gin-gonic/gin"
 
@@ -12,42 +12,39 @@ import (
 	"kinword/internal/index"
 )
 
-// lookupQuery is the query string of /api/v1/lookup and /api/v1/hints.
-type lookupQuery struct {
-	Q        string `form:"q"`
-	Accepted string `form:"accepted"` // suggestion keys joined by "|"
-	Useful   string `form:"useful"`   // IDs of results marked useful, joined by "|"
-}
+// lookupParams are the parameters of /api/v1/lookup and /api/v1/hints:
+// q (the query), accepted (suggestion keys joined by "|"), useful (IDs of
+// results marked useful, joined by "|") and persona (demo mode). Any other
+// parameter, or one given twice, answers 400.
+var lookupParams = []string{"q", "accepted", "useful", "persona"}
 
+// bindLookup checks the query string (strictQuery) and the query's length
+// (Options.MaxQueryBytes, in bytes as sent, 400 bad_query beyond it); the
+// finder then refuses a query of more distinct terms than its limit with
+// index.ErrBadQuery, which answer maps to 400 bad_query as well.
 func (s *Server) bindLookup(c *gin.Context) (finder.Request, bool) {
-	var lq lookupQuery
-	if err := c.ShouldBindQuery(&lq); err != nil {
-		apiError(c, http.StatusBadRequest, "bad_request", err.Error())
+	p, ok := strictQuery(c, lookupParams...)
+	if !ok {
 		return finder.Request{}, false
 	}
-	if strings.TrimSpace(lq.Q) == "" {
+	q := p["q"]
+	if strings.TrimSpace(q) == "" {
 		apiError(c, http.StatusBadRequest, "missing_query", "parameter q is required")
 		return finder.Request{}, false
 	}
-	if !utf8.ValidString(lq.Q) || !utf8.ValidString(lq.Accepted) || !utf8.ValidString(lq.Useful) {
-		apiError(c, http.StatusBadRequest, "invalid_utf8", "parameters must be valid UTF-8")
+	if len(q) > s.opts.MaxQueryBytes {
+		apiError(c, http.StatusBadRequest, "bad_query", fmt.Sprintf("the query is %d bytes; the limit is %d", len(q), s.opts.MaxQueryBytes))
 		return finder.Request{}, false
 	}
-	for _, r := range lq.Q {
-		if r < 0x20 && r != '\t' {
-			apiError(c, http.StatusBadRequest, "control_characters", "the query contains control characters")
-			return finder.Request{}, false
-		}
-	}
 	var acc []string
-	if lq.Accepted != "" {
-		acc = strings.Split(lq.Accepted, "|")
+	if p["accepted"] != "" {
+		acc = strings.Split(p["accepted"], "|")
 	}
 	var useful []string
-	if lq.Useful != "" {
-		useful = strings.Split(lq.Useful, "|")
+	if p["useful"] != "" {
+		useful = strings.Split(p["useful"], "|")
 	}
-	return finder.Request{Query: lq.Q, Accepted: acc, Useful: useful, Viewer: s.viewer(c)}, true
+	return finder.Request{Query: q, Accepted: acc, Useful: useful, Viewer: s.viewer(c)}, true
 }
 
 func (s *Server) answer(c *gin.Context, req finder.Request) {

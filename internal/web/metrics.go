@@ -7,6 +7,8 @@ import (
 	"github.com/gin-gonic/gin"
 	"github.com/prometheus/client_golang/prometheus"
 	"github.com/prometheus/client_golang/prometheus/promhttp"
+
+	"kinword/internal/store"
 )
 
 // metrics are the server's Prometheus series.
@@ -17,8 +19,10 @@ type metrics struct {
 	impressions prometheus.Counter
 	accepted    prometheus.Counter
 	events      *prometheus.CounterVec
-	storeErrors prometheus.Counter
+	storeErrors *prometheus.CounterVec
 	reloads     *prometheus.CounterVec
+	queueDepth  prometheus.Gauge
+	rateLimited prometheus.Counter
 }
 
 func newMetrics(reg *prometheus.Registry) *metrics {
@@ -29,13 +33,20 @@ func newMetrics(reg *prometheus.Registry) *metrics {
 		impressions: prometheus.NewCounter(prometheus.CounterOpts{Name: "kinword_suggestion_impressions_total", Help: "Suggested terms shown."}),
 		accepted:    prometheus.NewCounter(prometheus.CounterOpts{Name: "kinword_suggestion_accepts_total", Help: "Accepted terms searched with."}),
 		events:      prometheus.NewCounterVec(prometheus.CounterOpts{Name: "kinword_events_total", Help: "Interaction events committed, by kind."}, []string{"kind"}),
-		storeErrors: prometheus.NewCounter(prometheus.CounterOpts{Name: "kinword_store_errors_total", Help: "Event batches the store could not commit."}),
+		storeErrors: prometheus.NewCounterVec(prometheus.CounterOpts{Name: "kinword_store_errors_total", Help: "Event batches the store could not commit, by kind of failure (store.FailureKind, or internal)."}, []string{"kind"}),
 		reloads:     prometheus.NewCounterVec(prometheus.CounterOpts{Name: "kinword_reload_total", Help: "Reloads of the index snapshot and association table (route or SIGHUP), by result."}, []string{"result"}),
+		rateLimited: prometheus.NewCounter(prometheus.CounterOpts{Name: "kinword_rate_limited_total", Help: "Requests refused with 429 because the client's rate limit bucket was empty."}),
 	}
 	for _, r := range []string{"ok", "failed"} {
 		m.reloads.WithLabelValues(r) // both series exist from the start, at 0
 	}
-	reg.MustRegister(m.requests, m.latency, m.impressions, m.accepted, m.events, m.storeErrors, m.reloads, prometheus.NewGoCollector(), prometheus.NewProcessCollector(prometheus.ProcessCollectorOpts{}))
+	for _, k := range append([]string{"internal"}, store.FailureKinds...) {
+		m.storeErrors.WithLabelValues(k) // every kind exists from the start, at 0
+	}
+	m.queueDepth = prometheus.NewGauge(prometheus.GaugeOpts{Name: "kinword_event_queue_depth",
+		Help: "Event batches waiting for the store's group-commit writer (read at each scrape)."})
+	reg.MustRegister(m.requests, m.latency, m.impressions, m.accepted, m.events, m.storeErrors, m.reloads, m.rateLimited, prometheus.NewGoCollector(), prometheus.NewProcessCollector(prometheus.ProcessCollectorOpts{}))
+	reg.MustRegister(m.queueDepth)
 	return m
 }
 
@@ -54,5 +65,8 @@ func (s *Server) observe() gin.HandlerFunc {
 }
 
 func (s *Server) metricsHandler(c *gin.Context) {
+	if q, ok := s.opts.Events.(QueueDepther); ok {
+		s.metrics.queueDepth.Set(float64(q.QueueDepth()))
+	}
 	promhttp.HandlerFor(s.metrics.reg, promhttp.HandlerOpts{}).ServeHTTP(c.Writer, c.Request)
 }

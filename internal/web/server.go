@@ -10,6 +10,7 @@ import (
 	"fmt"
 	"io/fs"
 	"log/slog"
+	"math"
 	"net"
 	"net/http"
 	"time"
@@ -63,6 +64,20 @@ type Options struct {
 	// change at once instead of at its next refresh; keep it short (one
 	// store read and a compile).
 	RulesChanged func()
+	// RateLimit bounds each client's request rate (429 with Retry-After);
+	// the zero value turns it off. See RateLimit for who a client is.
+	RateLimit RateLimit
+	// MaxBodyBytes bounds every request body (bytes; 413 beyond it),
+	// checked before any handler reads; default and most 1 MiB, the most
+	// a handler reads.
+	MaxBodyBytes int64
+	// MaxQueryBytes bounds q of /api/v1/lookup and /api/v1/hints (bytes;
+	// 400 beyond it); default 512. Set it to the finder's query limit.
+	MaxQueryBytes int
+	// JSONRoutes are the routes ("METHOD /pattern" of the route table)
+	// whose non-empty bodies must be application/json (415 otherwise); nil
+	// means DefaultJSONRoutes(), an empty non-nil list none.
+	JSONRoutes []string
 	// ShutdownGrace bounds the drain of in-flight requests; default 10 s.
 	ShutdownGrace time.Duration
 	// Log receives request errors and lifecycle lines; default slog.Default().
@@ -99,6 +114,20 @@ func New(f *finder.Finder, opts Options) (*Server, error) {
 	if opts.Log == nil {
 		opts.Log = slog.Default()
 	}
+	if opts.MaxBodyBytes <= 0 || opts.MaxBodyBytes > defaultMaxBody {
+		opts.MaxBodyBytes = defaultMaxBody
+	}
+	if opts.MaxQueryBytes <= 0 {
+		opts.MaxQueryBytes = defaultMaxQueryBytes
+	}
+	if r := opts.RateLimit.PerSecond; !(r >= 0) || math.IsInf(r, 0) {
+		return nil, fmt.Errorf("web: rate limit %v requests per second is not a finite number >= 0", r)
+	}
+	for _, o := range opts.AllowedOrigins {
+		if err := validOrigin(o); err != nil {
+			return nil, err
+		}
+	}
 	for _, a := range requiredAssets {
 		if _, err := fs.Stat(static.FS, a); err != nil {
 			return nil, fmt.Errorf("web: missing embedded asset %s: %w", a, err)
@@ -110,7 +139,16 @@ func New(f *finder.Finder, opts Options) (*Server, error) {
 	}
 	gin.SetMode(gin.ReleaseMode)
 	s := &Server{f: f, docs: f, reloader: f, tokens: tokens, opts: opts, engine: gin.New(), metrics: newMetrics(prometheus.NewRegistry()), assets: static.FS}
-	s.engine.Use(gin.Recovery(), s.securityHeaders(), s.cors(), s.observe())
+	jsonRoutes, err := s.jsonRouteSet()
+	if err != nil {
+		return nil, err
+	}
+	var lim *limiter
+	if opts.RateLimit.PerSecond > 0 {
+		lim = newLimiter(opts.RateLimit)
+	}
+	s.engine.Use(s.securityHeaders(), s.cors(), s.observe(), s.logRequests(), s.recoverPanics(),
+		s.rateLimit(lim), s.sameOrigin(), s.limitBody(), s.requireJSON(jsonRoutes))
 	for _, r := range s.routes() {
 		if r.Role.rank() < 0 {
 			return nil, fmt.Errorf("web: route %s %s has unknown role %q", r.Method, r.Path, r.Role)

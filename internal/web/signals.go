@@ -7,11 +7,15 @@ import (
 	"encoding/hex"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"io"
+	"math"
 	"mime"
 	"net/http"
+	"strconv"
 	"strings"
 	"time"
+	"unicode/utf8"
 
 	"github.com/gin-gonic/gin"
 
@@ -26,6 +30,24 @@ type EventSink interface {
 
 // maxBody bounds a request body (bytes).
 const maxBody = 1 << 20
+
+// defaultRetryAfter is what a 503 from the signals route advises when the
+// sink gives no RetryAfter.
+const defaultRetryAfter = 5 * time.Second
+
+// RetryAdvisor may be implemented by an EventSink (*store.Store does, from
+// store.Options.RetryAfter) to choose the Retry-After of the signals
+// route's 503; without it the route advises 5 s.
+type RetryAdvisor interface {
+	RetryAfter() time.Duration
+}
+
+// QueueDepther may be implemented by an EventSink (*store.Store does) to
+// report how many batches wait for its writer; /metrics shows it as
+// kinword_event_queue_depth.
+type QueueDepther interface {
+	QueueDepth() int
+}
 
 // signalIn is one event as the page sends it. The server adds the time,
 // the session, the department and the groups' hash itself.
@@ -66,6 +88,13 @@ func (s *Server) signals(c *gin.Context) {
 		apiError(c, http.StatusRequestEntityTooLarge, "too_large", "the body exceeds 1 MiB")
 		return
 	}
+	// encoding/json would silently turn invalid UTF-8 into U+FFFD, storing
+	// something the client did not send; refuse it instead (RFC 8259,
+	// section 8.1: JSON text exchanged between systems is UTF-8).
+	if !utf8.Valid(body) {
+		apiError(c, http.StatusBadRequest, "invalid_utf8", "the body is not valid UTF-8")
+		return
+	}
 	dec := json.NewDecoder(strings.NewReader(string(body)))
 	dec.DisallowUnknownFields()
 	var in signalsIn
@@ -78,7 +107,7 @@ func (s *Server) signals(c *gin.Context) {
 		return
 	}
 	if len(in.Events) == 0 || len(in.Events) > store.MaxBatch {
-		apiError(c, http.StatusBadRequest, "batch_size", "send 1 to 1000 events")
+		apiError(c, http.StatusBadRequest, "batch_size", fmt.Sprintf("a batch holds 1 to %d events; this one has %d", store.MaxBatch, len(in.Events)))
 		return
 	}
 	v := s.viewer(c)
@@ -104,14 +133,33 @@ func (s *Server) signals(c *gin.Context) {
 	case errors.Is(err, store.ErrUnknownImpression):
 		apiError(c, http.StatusUnprocessableEntity, "unknown_impression", err.Error())
 	case errors.Is(err, store.ErrUnavailable):
-		s.metrics.storeErrors.Inc()
-		c.Header("Retry-After", "5")
-		apiError(c, http.StatusServiceUnavailable, "store_unavailable", "events are not being recorded right now; retry later")
+		kind := store.FailureKind(err)
+		s.metrics.storeErrors.WithLabelValues(kind).Inc()
+		s.opts.Log.Warn("signals: store unavailable; answered 503", "kind", kind, "events", len(batch), "err", err)
+		c.Header("Retry-After", s.retryAfter())
+		apiError(c, http.StatusServiceUnavailable, "store_unavailable", "events are not being recorded right now; retry later with the same ids (409 then means they were recorded)")
+	case errors.Is(err, context.Canceled), errors.Is(err, context.DeadlineExceeded):
+		// The client went away (or its deadline passed) before the commit
+		// answered; the batch may still commit, and a retry with the same
+		// ids is answered 409.
+		s.metrics.storeErrors.WithLabelValues(store.FailTimeout).Inc()
+		c.Header("Retry-After", s.retryAfter())
+		apiError(c, http.StatusServiceUnavailable, "store_unavailable", "the commit did not answer in time; retry with the same ids")
 	default:
-		s.metrics.storeErrors.Inc()
+		s.metrics.storeErrors.WithLabelValues("internal").Inc()
 		s.opts.Log.Error("signals", "err", err)
 		apiError(c, http.StatusInternalServerError, "internal", "the events were not recorded")
 	}
+}
+
+// retryAfter is the Retry-After value (whole seconds, at least 1) of the
+// signals route's 503 (RFC 9110, section 10.2.3: delay-seconds).
+func (s *Server) retryAfter() string {
+	d := defaultRetryAfter
+	if ra, ok := s.opts.Events.(RetryAdvisor); ok && ra.RetryAfter() > 0 {
+		d = ra.RetryAfter()
+	}
+	return strconv.Itoa(max(1, int(math.Ceil(d.Seconds()))))
 }
 
 // session returns the visitor's random session id, which rotates daily; it
