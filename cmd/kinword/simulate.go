@@ -19,7 +19,7 @@ import (
 
 func init() {
 	register(&command{name: "simulate", summary: "simulate searchers of each department accepting suggestions (cascade click model) and report how learning raises acceptance",
-		usage: "[--sessions N] [--seed S] [--corpus DIR] [--data DIR] [--json]", run: runSimulate})
+		usage: "[--sessions N] [--seed S] [--corpus DIR] [--data DIR] [--record] [--json]", run: runSimulate})
 }
 
 // simDept is one department's simulated searchers and results.
@@ -44,6 +44,7 @@ func runSimulate(ctx context.Context, e *env, args []string) error {
 	seed := fs.Uint64("seed", 1, "random seed")
 	window := fs.Int("window", 200, "sessions per reported window")
 	corpus := fs.String("corpus", filepath.Join("testdata", "tarnwick"), "demo corpus with preferences.tsv")
+	record := fs.Bool("record", false, "also write the simulated traffic (impressions, accepts, result clicks) into the data folder's event store, spread over the last 30 days")
 	if _, err := e.parse(fs, c, args); err != nil {
 		return err
 	}
@@ -67,6 +68,15 @@ func runSimulate(ctx context.Context, e *env, args []string) error {
 		return fmt.Errorf("simulate: no documents in %s (run kinword demo first, or give --data)", e.dataDir)
 	}
 	depts := simDepartments(j, p)
+	var rec *simRecorder
+	if *record {
+		st, err := e.openStore(ctx)
+		if err != nil {
+			return err
+		}
+		defer st.Close()
+		rec = newSimRecorder(st, j, *seed, time.Now().UTC(), *sessions*len(depts))
+	}
 	rng := rand.New(rand.NewPCG(*seed, *seed+1))
 	var events []prefs.Event
 	at := time.Date(2026, 6, 1, 8, 0, 0, 0, time.UTC)
@@ -85,6 +95,11 @@ func runSimulate(ctx context.Context, e *env, args []string) error {
 			}
 			pos := prefs.SimulateSession(rng, shown, d.prefer[t.ID], cascade)
 			events = append(events, prefs.SessionEvents(sess, d.Department, f.CanonicalQuery(t.Text), at, shown, pos)...)
+			if rec != nil {
+				if err := rec.session(ctx, f, d.Department, t, shown, pos); err != nil {
+					return err
+				}
+			}
 			w := i / *window
 			for len(d.win) <= w {
 				d.win = append(d.win, [2]int{})
@@ -123,7 +138,23 @@ func runSimulate(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	return reportSimulation(e, depts, amb)
+	if rec == nil {
+		return reportSimulation(e, depts, amb)
+	}
+	stored, err := rec.flush(ctx)
+	if err != nil {
+		return err
+	}
+	if err := reportSimulation(e, depts, amb); err != nil {
+		return err
+	}
+	// The JSON document on stdout stays as without --record.
+	out := e.stdout
+	if e.json {
+		out = e.stderr
+	}
+	fmt.Fprintln(out, rec.summary(stored))
+	return nil
 }
 
 // ambiguousTop is one ambiguous query's first suggestion per asking
