@@ -163,6 +163,13 @@ type ambiguousTop struct {
 	Topic string            `json:"topic"`
 	Query string            `json:"query"`
 	Top   map[string]string `json:"top"` // department -> first suggestion's display
+	// Elsewhere is what a department that never searched the topic is
+	// offered (the first such department by name): the organisation-wide
+	// estimate, as all its departments' clicks shape it.
+	Elsewhere struct {
+		Department  string   `json:"department"`
+		Suggestions []string `json:"suggestions"`
+	} `json:"elsewhere"`
 }
 
 func ambiguousTops(ctx context.Context, f *finder.Finder, j *demo.Judged) ([]ambiguousTop, error) {
@@ -185,9 +192,37 @@ func ambiguousTops(ctx context.Context, f *finder.Finder, j *demo.Judged) ([]amb
 				a.Top[t.Department] = resp.Suggestions[0].Display
 			}
 		}
+		for _, d := range allDepartments(j) {
+			if _, searched := a.Top[d]; searched {
+				continue
+			}
+			resp, err := f.Search(ctx, finder.Request{Query: a.Query, Viewer: access.Viewer{Department: d}, Impression: "report-elsewhere-" + b})
+			if err != nil {
+				return nil, err
+			}
+			a.Elsewhere.Department = d
+			for _, s := range resp.Suggestions {
+				a.Elsewhere.Suggestions = append(a.Elsewhere.Suggestions, s.Display)
+			}
+			break
+		}
 		out = append(out, a)
 	}
 	return out, nil
+}
+
+// allDepartments lists the departments of the judged topics, sorted.
+func allDepartments(j *demo.Judged) []string {
+	seen := map[string]bool{}
+	var out []string
+	for _, t := range j.Topics {
+		if t.Department != "" && !seen[t.Department] {
+			seen[t.Department] = true
+			out = append(out, t.Department)
+		}
+	}
+	sort.Strings(out)
+	return out
 }
 
 // simDepartments groups the ambiguous topic sides with preferred terms by
