@@ -19,7 +19,7 @@ import (
 
 func init() {
 	register(&command{name: "serve", summary: "serve the search page and the JSON API (search with suggestions, suggestions alone) over the data folder",
-		usage: "[--addr HOST:PORT] [--data DIR]", run: runServe})
+		usage: "[--addr HOST:PORT] [--data DIR] [--snapshots SHARED]", run: runServe})
 }
 
 // demoPersonas are the departments a demo visitor may search as.
@@ -38,16 +38,23 @@ var demoPersonas = []web.Persona{
 func runServe(ctx context.Context, e *env, args []string) error {
 	fs, c := newFlags("serve", e.stderr)
 	addr := fs.String("addr", "", "listen address (default server.addr from the config, 127.0.0.1:7410)")
+	snaps := fs.String("snapshots", os.Getenv("KINWORD_SNAPSHOTS"), "shared folder written by kinword publish: serve its current version and swap in newer ones every server.refresh_seconds (default $KINWORD_SNAPSHOTS)")
 	if _, err := e.parse(fs, c, args); err != nil {
 		return err
 	}
-	return e.serve(ctx, *addr, false)
+	return e.serveWith(ctx, *addr, false, *snaps)
 }
 
 // serve opens the finder on the data folder and serves until ctx ends.
 // SIGHUP reloads the index snapshot and the association table (as POST
 // /api/v1/reload does).
 func (e *env) serve(ctx context.Context, addr string, demo bool) error {
+	return e.serveWith(ctx, addr, demo, "")
+}
+
+// serveWith is serve; with shared set it serves the snapshots published
+// there (snapshots.go) instead of the data folder's own index.
+func (e *env) serveWith(ctx context.Context, addr string, demo bool, shared string) error {
 	if addr == "" {
 		addr = e.cfg.Server.Addr
 	}
@@ -60,9 +67,14 @@ func (e *env) serve(ctx context.Context, addr string, demo bool) error {
 		return err
 	}
 	start := time.Now()
-	f, err := finder.Open(ctx, e.dataDir, p, finder.Options{
+	dir, version, rep := e.dataDir, "", (*replica)(nil)
+	if shared != "" {
+		rep = newReplica(shared, e.dataDir, e.log)
+		dir, version = rep.start(ctx, e.dataDir)
+	}
+	f, err := finder.Open(ctx, dir, p, finder.Options{
 		BM25: e.bm25(), Results: e.cfg.Search.Results, SnippetTokens: e.cfg.Search.SnippetTokens,
-		Limits: e.queryLimits(), CacheTTL: time.Duration(e.cfg.Server.RefreshSeconds) * time.Second,
+		Limits: e.queryLimits(), CacheTTL: time.Duration(e.cfg.Server.RefreshSeconds) * time.Second, Version: version,
 	})
 	if err != nil {
 		return err
@@ -77,9 +89,12 @@ func (e *env) serve(ctx context.Context, addr string, demo bool) error {
 	retention := time.Duration(e.cfg.Store.RetentionDays) * 24 * time.Hour
 	go learnLoop(ctx, e.log, st, f, &rulesRefresher{st: st, f: f, p: p}, refresh, retention)
 	go pruneLoop(ctx, e.log, st, retention)
+	if rep != nil {
+		go rep.loop(ctx, f, refresh)
+	}
 	opts := web.Options{Events: st, Addr: addr, Demo: demo, AllowedOrigins: e.cfg.Server.AllowedOrigins, Log: e.log, Tokens: tokens,
 		ShutdownGrace: time.Duration(e.cfg.Server.ShutdownGraceSeconds) * time.Second,
-		Rules:         curation{st: st}, Reviewer: curation{st: st}, Pipeline: p, RulesChanged: rulesNow(ctx, e.log, st, f, p),
+		Rules:         curation{st: st}, Reviewer: curation{st: st, display: f.DisplayKey}, Pipeline: p, RulesChanged: rulesNow(ctx, e.log, st, f, p),
 		Identity: web.Identity{DepartmentHeader: e.cfg.Server.DepartmentHeader, GroupsHeader: e.cfg.Server.GroupsHeader,
 			SecretHeader: e.cfg.Server.SecretHeader, Secret: os.Getenv("KINWORD_PROXY_SECRET"), TrustLoopback: e.cfg.Server.TrustLoopback},
 		RateLimit: web.RateLimit{PerSecond: e.cfg.Server.RatePerSecond, Burst: e.cfg.Server.RateBurst}, MaxBodyBytes: e.cfg.Server.MaxBodyBytes, MaxQueryBytes: e.cfg.Search.MaxQueryBytes,

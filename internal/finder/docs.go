@@ -68,9 +68,12 @@ type PushResult struct {
 // Every problem of the batch is reported at once, wrapping
 // ErrInvalidDocument, and then nothing is written.
 func (f *Finder) PutDocuments(ctx context.Context, in []DocumentIn) (PushResult, error) {
-	if f.st.Load() == nil {
-		return PushResult{}, ErrNotReady
+	s, err := f.acquire()
+	if err != nil {
+		return PushResult{}, err
 	}
+	defer s.release()
+	ix := s.h.ix
 	if len(in) == 0 || len(in) > MaxPushBatch {
 		return PushResult{}, fmt.Errorf("%w: send 1 to %d documents, not %d", ErrInvalidDocument, MaxPushBatch, len(in))
 	}
@@ -79,7 +82,7 @@ func (f *Finder) PutDocuments(ctx context.Context, in []DocumentIn) (PushResult,
 	var problems []string
 	seen := map[string]int{}
 	for i, d := range in {
-		out, err := pushedDocument(d, f.ix.Pipeline().DefaultLanguage(), now)
+		out, err := pushedDocument(d, f.p.DefaultLanguage(), now)
 		if err == nil {
 			if j, dup := seen[out.ID]; dup {
 				err = fmt.Errorf("id %q is also document %d", out.ID, j)
@@ -98,7 +101,7 @@ func (f *Finder) PutDocuments(ctx context.Context, in []DocumentIn) (PushResult,
 	f.wmu.Lock()
 	defer f.wmu.Unlock()
 	var res PushResult
-	all := f.everything()
+	all := everything(ix)
 	for _, d := range docs {
 		if _, ok := all.DocNum(d.ID); ok {
 			res.Replaced++
@@ -109,22 +112,25 @@ func (f *Finder) PutDocuments(ctx context.Context, in []DocumentIn) (PushResult,
 	// Once checked, a batch is written and committed whole: a client that
 	// goes away mid-request does not leave it uncommitted.
 	wctx := context.WithoutCancel(ctx)
-	if err := f.ix.Put(wctx, docs); err != nil {
+	if err := ix.Put(wctx, docs); err != nil {
 		return PushResult{}, fmt.Errorf("finder: push: %w", err)
 	}
-	if err := f.commit(wctx); err != nil {
+	if err := f.commit(wctx, ix); err != nil {
 		return PushResult{}, err
 	}
-	res.Documents = f.ix.Len()
+	res.Documents = ix.Len()
 	return res, nil
 }
 
 // DeleteDocuments removes documents by ID, commits, and returns how many
 // existed. Unknown IDs are not an error.
 func (f *Finder) DeleteDocuments(ctx context.Context, ids []string) (PushResult, error) {
-	if f.st.Load() == nil {
-		return PushResult{}, ErrNotReady
+	s, err := f.acquire()
+	if err != nil {
+		return PushResult{}, err
 	}
+	defer s.release()
+	ix := s.h.ix
 	var clean []string
 	for _, id := range ids {
 		if id = strings.TrimSpace(id); id != "" {
@@ -137,7 +143,7 @@ func (f *Finder) DeleteDocuments(ctx context.Context, ids []string) (PushResult,
 	f.wmu.Lock()
 	defer f.wmu.Unlock()
 	var res PushResult
-	all := f.everything()
+	all := everything(ix)
 	var known []string
 	for _, id := range clean {
 		if _, ok := all.DocNum(id); ok {
@@ -146,34 +152,35 @@ func (f *Finder) DeleteDocuments(ctx context.Context, ids []string) (PushResult,
 	}
 	if len(known) > 0 {
 		wctx := context.WithoutCancel(ctx)
-		if err := f.ix.Delete(wctx, known); err != nil {
+		if err := ix.Delete(wctx, known); err != nil {
 			return PushResult{}, fmt.Errorf("finder: delete: %w", err)
 		}
-		if err := f.commit(wctx); err != nil {
+		if err := f.commit(wctx, ix); err != nil {
 			return PushResult{}, err
 		}
 	}
 	res.Deleted = len(known)
-	res.Documents = f.ix.Len()
+	res.Documents = ix.Len()
 	return res, nil
 }
 
 // commit makes written documents durable and searchable: the index swaps
 // in its new snapshot, which is warmed here rather than by the next
-// search, and cached suggestion lists are dropped.
-func (f *Finder) commit(ctx context.Context) error {
-	if err := f.ix.Commit(ctx); err != nil {
+// search, and cached suggestion lists are dropped. Writes go to the index
+// published when the request started; after a Swap they are not served.
+func (f *Finder) commit(ctx context.Context, ix *index.Index) error {
+	if err := ix.Commit(ctx); err != nil {
 		return fmt.Errorf("finder: commit: %w", err)
 	}
-	f.ix.Warm()
+	ix.Warm()
 	f.cache.Flush()
 	return nil
 }
 
 // everything is a view that may read every document (for existence
 // checks only; nothing from it reaches a viewer).
-func (f *Finder) everything() *index.View {
-	return f.ix.View(access.Viewer{Groups: f.ix.Groups()})
+func everything(ix *index.Index) *index.View {
+	return ix.View(access.Viewer{Groups: ix.Groups()})
 }
 
 // pushedDocument checks one pushed document through ingest's JSON line

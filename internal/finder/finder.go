@@ -1,7 +1,7 @@
 // Package finder is Kinword's search service: it answers a viewer's query
 // with ranked results, snippets and suggested terms, over an immutable
-// snapshot of the index and the association table that Reload swaps
-// atomically. It must not import gin or database drivers; bleve is reached
+// snapshot of the index and the association table that Reload and Swap
+// replace atomically. It must not import gin or database drivers; bleve is reached
 // only through internal/index.
 package finder
 
@@ -62,6 +62,9 @@ type Options struct {
 	// scope and query; default 30 s (the refresh interval); negative: never
 	// reused (every request computes its suggestions).
 	CacheTTL time.Duration
+	// Version labels the folder Open opens in Status (a replica's
+	// snapshot version, see Swap); default empty.
+	Version string
 }
 
 func (o Options) resolve() Options {
@@ -91,21 +94,27 @@ func (o Options) resolve() Options {
 	return o
 }
 
-// state is one loaded snapshot: immutable once published.
+// state is one loaded snapshot: immutable once published. Reload makes a
+// new state on the same index handle; Swap makes one on a new handle.
 type state struct {
-	tbl    *assoc.Table
-	eng    *suggest.Engine
-	loaded time.Time
+	h       *handle
+	table   string // association table path ("" = none)
+	version string // snapshot label ("" = the data folder opened)
+	tbl     *assoc.Table
+	eng     *suggest.Engine
+	loaded  time.Time
 }
 
 // Finder serves searches. It is safe for concurrent use.
 type Finder struct {
-	ix    *index.Index
-	opts  Options
-	table string // association table path ("" = none)
-	st    atomic.Pointer[state]
-	model atomic.Pointer[prefs.Model]
-	rules atomic.Pointer[curate.Set]
+	ix     liveIndex // the published index, unpinned (tests, benchmarks)
+	p      *text.Pipeline
+	opts   Options
+	st     atomic.Pointer[state]
+	smu    sync.Mutex // serialises Reload, Swap and Close
+	closed bool       // guarded by smu
+	model  atomic.Pointer[prefs.Model]
+	rules  atomic.Pointer[curate.Set]
 	// noCache: CacheTTL was negative, suggestion lists are never reused.
 	noCache bool
 	cache   *gocache.Cache
@@ -124,7 +133,7 @@ func (f *Finder) SetModel(m *prefs.Model) {
 // analysed terms and phrases, sorted, joined by single spaces ("" when the
 // text has no searchable words).
 func (f *Finder) CanonicalQuery(raw string) string {
-	q, err := index.ParseQuery(f.ix.Pipeline(), raw, f.opts.Limits)
+	q, err := index.ParseQuery(f.p, raw, f.opts.Limits)
 	if err != nil {
 		return ""
 	}
@@ -147,22 +156,38 @@ func Open(ctx context.Context, dataDir string, p *text.Pipeline, opts Options) (
 	if err != nil {
 		return nil, err
 	}
-	ix.Warm()
-	f := &Finder{ix: ix, opts: opts.resolve(), table: filepath.Join(dataDir, "assoc.kwa")}
+	f := &Finder{p: p, opts: opts.resolve()}
+	f.ix = liveIndex{f}
 	ttl := f.opts.CacheTTL
 	if ttl < 0 { // no reuse: the cache stays empty (benchmarks)
 		f.noCache, ttl = true, time.Minute
 	}
 	f.cache = gocache.New(ttl, 2*ttl)
-	if err := f.Reload(ctx); err != nil {
+	s, err := f.buildState(ctx, newHandle(ix), filepath.Join(dataDir, "assoc.kwa"), f.opts.Version)
+	if err != nil {
 		ix.Close()
 		return nil, err
 	}
+	f.st.Store(s)
 	return f, nil
 }
 
-// Close releases the index.
-func (f *Finder) Close() error { return f.ix.Close() }
+// Close releases the index once the requests using it have finished, and
+// returns its close error. Later searches fail with index.ErrClosed.
+// Closing twice is harmless.
+func (f *Finder) Close() error {
+	f.smu.Lock()
+	s := f.st.Load()
+	if f.closed || s == nil {
+		f.smu.Unlock()
+		return nil
+	}
+	f.closed = true
+	f.smu.Unlock()
+	s.release()
+	<-s.h.done
+	return s.h.err
+}
 
 // Ready reports whether the finder can answer searches.
 func (f *Finder) Ready() error {
@@ -177,19 +202,23 @@ type Status struct {
 	Documents int       `json:"documents"`
 	Table     bool      `json:"association_table"`
 	Loaded    time.Time `json:"loaded"`
+	// Version is the published snapshot's label (Swap); empty for the
+	// data folder the finder was opened on.
+	Version string `json:"version,omitempty"`
 }
 
 // Status reports the loaded snapshot.
 func (f *Finder) Status() Status {
-	s := f.st.Load()
-	if s == nil {
+	s, err := f.acquire()
+	if err != nil {
 		return Status{}
 	}
-	return Status{Documents: f.ix.Len(), Table: s.tbl != nil, Loaded: s.loaded}
+	defer s.release()
+	return Status{Documents: s.h.ix.Len(), Table: s.tbl != nil, Loaded: s.loaded, Version: s.version}
 }
 
 // Pipeline returns the text pipeline.
-func (f *Finder) Pipeline() *text.Pipeline { return f.ix.Pipeline() }
+func (f *Finder) Pipeline() *text.Pipeline { return f.p }
 
 func newImpressionID() string {
 	var b [12]byte

@@ -2,13 +2,9 @@ package finder
 
 import (
 	"context"
-	"errors"
 	"fmt"
-	"os"
-	"time"
 
-	"kinword/internal/assoc"
-	"kinword/internal/suggest"
+	"kinword/internal/index"
 )
 
 // Reload refreshes what the finder serves and publishes it as one new
@@ -22,30 +18,27 @@ import (
 // index folder for as long as it serves, so nothing else can change that
 // folder underneath it, and every change made through the finder
 // (PutDocuments, DeleteDocuments) is already searchable once committed.
+// To serve another index folder, use Swap.
 //
 // On any error the previous snapshot keeps serving and the error is
 // returned; nothing is half-swapped.
 func (f *Finder) Reload(ctx context.Context) error {
-	var tbl *assoc.Table
-	if f.table != "" {
-		t, err := assoc.Load(f.table)
-		switch {
-		case errors.Is(err, os.ErrNotExist):
-		case err != nil:
-			return fmt.Errorf("finder: reload table: %w", err)
-		default:
-			tbl = t
-		}
+	f.smu.Lock()
+	defer f.smu.Unlock()
+	cur := f.st.Load()
+	switch {
+	case cur == nil:
+		return ErrNotReady
+	case f.closed:
+		return fmt.Errorf("finder: reload: %w", index.ErrClosed)
 	}
-	eng, err := suggest.New(tbl, suggest.Options{K: f.opts.Suggestions})
+	// cur's index cannot close meanwhile: only Swap and Close release the
+	// published reference, and both wait for smu.
+	ns, err := f.buildState(ctx, cur.h, cur.table, cur.version)
 	if err != nil {
-		return fmt.Errorf("finder: reload: %w", err)
+		return err
 	}
-	f.ix.Warm()
-	if err := ctx.Err(); err != nil {
-		return fmt.Errorf("finder: reload: %w", err)
-	}
-	f.st.Store(&state{tbl: tbl, eng: eng, loaded: time.Now()})
+	f.st.Store(ns)
 	f.cache.Flush()
 	return nil
 }

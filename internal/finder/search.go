@@ -81,15 +81,16 @@ type Request struct {
 // suggestions from the viewer's own top results. Errors wrapping
 // index.ErrBadQuery are the caller's fault.
 func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
-	s := f.st.Load()
-	if s == nil {
-		return Response{}, ErrNotReady
-	}
-	q, err := index.ParseQuery(f.ix.Pipeline(), req.Query, f.opts.Limits)
+	s, err := f.acquire()
 	if err != nil {
 		return Response{}, err
 	}
-	view := f.ix.View(req.Viewer)
+	defer s.release() // the index stays open until this search is done
+	q, err := index.ParseQuery(f.p, req.Query, f.opts.Limits)
+	if err != nil {
+		return Response{}, err
+	}
+	view := s.h.ix.View(req.Viewer)
 	eff := f.effect(req.Viewer.Department, q, time.Now())
 	accepted := cleanAccepted(req.Accepted)
 	full := withEquivalents(q, eff)
@@ -141,7 +142,7 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 		if len(hits) > f.opts.Results {
 			hits = hits[:f.opts.Results]
 		}
-		if out.Results, err = f.render(ctx, view, full, hits); err != nil {
+		if out.Results, err = f.render(ctx, s.h.ix, view, full, hits); err != nil {
 			return Response{}, err
 		}
 	}
@@ -301,12 +302,12 @@ func cloneParts(p map[string]float64) map[string]float64 {
 	return out
 }
 
-func (f *Finder) render(ctx context.Context, view *index.View, q []index.QueryTerm, hits []index.Hit) ([]Result, error) {
+func (f *Finder) render(ctx context.Context, ix *index.Index, view *index.View, q []index.QueryTerm, hits []index.Hit) ([]Result, error) {
 	nums := make([]uint32, len(hits))
 	for i, h := range hits {
 		nums[i] = h.Doc
 	}
-	docs, err := view.Stored(ctx, f.ix, nums)
+	docs, err := view.Stored(ctx, ix, nums)
 	if err != nil {
 		return nil, err
 	}
@@ -321,7 +322,7 @@ func (f *Finder) render(ctx context.Context, view *index.View, q []index.QueryTe
 			continue
 		}
 		d := docs[i]
-		sn := index.MakeSnippet(f.ix.Pipeline(), d.Body, d.Language, q, f.opts.SnippetTokens)
+		sn := index.MakeSnippet(f.p, d.Body, d.Language, q, f.opts.SnippetTokens)
 		out = append(out, Result{Rank: len(out) + 1, ID: d.ID, Title: d.Title, URL: d.URL, Department: d.Department,
 			Snippet: sn.Text, Segments: segments(sn), Score: h.Score})
 	}

@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"strings"
 
-	"kinword/internal/access"
 	"kinword/internal/index"
 	"kinword/internal/prefs"
 	"kinword/internal/suggest"
@@ -25,7 +24,12 @@ const SnippetWeight = 0.8
 // renders it, less the query's own stems and stopwords. An unknown
 // document gives no stems and no error (it may have been deleted since).
 func (f *Finder) SnippetStems(ctx context.Context, docID, queryKey string, accepted []string) ([]string, error) {
-	view := f.ix.View(access.Viewer{Groups: f.ix.Groups()}) // the clicker could read it
+	s, err := f.acquire()
+	if err != nil {
+		return nil, err
+	}
+	defer s.release()
+	view := everything(s.h.ix) // the clicker could read it
 	d, ok := view.DocNum(docID)
 	if !ok {
 		return nil, nil
@@ -38,14 +42,14 @@ func (f *Finder) SnippetStems(ctx context.Context, docID, queryKey string, accep
 			skip[w] = true
 		}
 	}
-	docs, err := view.Stored(ctx, f.ix, []uint32{d})
+	docs, err := view.Stored(ctx, s.h.ix, []uint32{d})
 	if err != nil {
 		return nil, fmt.Errorf("finder: snippet of %s: %w", docID, err)
 	}
 	if len(docs) == 0 {
 		return nil, nil
 	}
-	p := f.ix.Pipeline()
+	p := f.p
 	sn := index.MakeSnippet(p, docs[0].Body, docs[0].Language, q, f.opts.SnippetTokens)
 	var out []string
 	for _, s := range p.Terms(sn.Text, docs[0].Language) {
