@@ -54,12 +54,7 @@ func ExportCSV(w io.Writer, rules []Rule, opts Options) error {
 // with an error wrapping ErrImport and no rules; the Report lists every
 // rejection with its line number and field.
 func ImportCSV(r io.Reader, opts Options) ([]Rule, *Report, error) {
-	rep := &Report{Format: "csv"}
-	o, err := opts.resolved()
-	if err != nil {
-		return nil, rep, err
-	}
-	b, err := readLimited(r, o.MaxBytes, rep)
+	o, rep, b, err := startImport(r, opts, "csv")
 	if err != nil {
 		return nil, rep, err
 	}

@@ -65,12 +65,7 @@ func ExportJSONLD(w io.Writer, rules []Rule, opts Options) error {
 // fetched: a document that needs one is rejected. All or nothing, like
 // ImportNTriples; rejections carry Line 0 and the node or triple as Item.
 func ImportJSONLD(r io.Reader, opts Options) ([]Rule, *Report, error) {
-	rep := &Report{Format: "json-ld"}
-	o, err := opts.resolved()
-	if err != nil {
-		return nil, rep, err
-	}
-	b, err := readLimited(r, o.MaxBytes, rep)
+	o, rep, b, err := startImport(r, opts, "json-ld")
 	if err != nil {
 		return nil, rep, err
 	}

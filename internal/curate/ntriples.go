@@ -40,12 +40,7 @@ func ExportNTriples(w io.Writer, rules []Rule, opts Options) error {
 // whole input with an error wrapping ErrImport and no rules; the Report
 // lists every rejection with its line.
 func ImportNTriples(r io.Reader, opts Options) ([]Rule, *Report, error) {
-	rep := &Report{Format: "n-triples"}
-	o, err := opts.resolved()
-	if err != nil {
-		return nil, rep, err
-	}
-	b, err := readLimited(r, o.MaxBytes, rep)
+	o, rep, b, err := startImport(r, opts, "n-triples")
 	if err != nil {
 		return nil, rep, err
 	}

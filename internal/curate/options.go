@@ -117,6 +117,18 @@ func (r *Report) result(rules []Rule) ([]Rule, *Report, error) {
 }
 
 // readLimited reads all of in, up to max bytes; more is an ErrImport.
+// startImport resolves opts and reads the whole input for an import of
+// format, within opts.MaxBytes: the start every importer shares.
+func startImport(in io.Reader, opts Options, format string) (Options, *Report, []byte, error) {
+	rep := &Report{Format: format}
+	o, err := opts.resolved()
+	if err != nil {
+		return o, rep, nil, err
+	}
+	b, err := readLimited(in, o.MaxBytes, rep)
+	return o, rep, b, err
+}
+
 func readLimited(in io.Reader, max int64, rep *Report) ([]byte, error) {
 	b, err := io.ReadAll(io.LimitReader(in, max+1))
 	if err != nil {

@@ -1,9 +1,7 @@
 package web
 
 import (
-	"bytes"
 	"context"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -32,19 +30,8 @@ type documentsIn struct {
 
 // putDocuments adds or replaces a batch of documents (admin).
 func (s *Server) putDocuments(c *gin.Context) {
-	body, ok := readJSONBody(c)
-	if !ok {
-		return
-	}
-	dec := json.NewDecoder(bytes.NewReader(body))
-	dec.DisallowUnknownFields()
 	var in documentsIn
-	if err := dec.Decode(&in); err != nil || dec.More() {
-		msg := "malformed JSON"
-		if err != nil {
-			msg = "malformed JSON: " + err.Error()
-		}
-		apiError(c, http.StatusBadRequest, "malformed_json", msg)
+	if !bindStrict(c, &in) {
 		return
 	}
 	if len(in.Documents) == 0 || len(in.Documents) > finder.MaxPushBatch {

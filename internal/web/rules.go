@@ -158,11 +158,17 @@ func (s *Server) createRule(c *gin.Context) {
 		return
 	}
 	out, err := b.Create(c.Request.Context(), in.Rule, s.actor(c), in.Why)
+	s.ruleChanged(c, http.StatusCreated, out, err)
+}
+
+// ruleChanged answers a rule change: the store's error, or the changed
+// record after the rules have been refreshed.
+func (s *Server) ruleChanged(c *gin.Context, status int, out any, err error) {
 	if s.ruleError(c, err) {
 		return
 	}
 	s.changed()
-	c.JSON(http.StatusCreated, out)
+	c.JSON(status, out)
 }
 
 // updateRule answers PUT /api/v1/rules/:id.
@@ -197,11 +203,7 @@ func (s *Server) updateRule(c *gin.Context) {
 		return
 	}
 	out, err := b.Update(c.Request.Context(), RuleRecord{Rule: in.Rule, Version: in.Version}, s.actor(c), in.Why)
-	if s.ruleError(c, err) {
-		return
-	}
-	s.changed()
-	c.JSON(http.StatusOK, out)
+	s.ruleChanged(c, http.StatusOK, out, err)
 }
 
 // deleteRule answers DELETE /api/v1/rules/:id?version=N&why=.

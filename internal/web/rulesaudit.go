@@ -73,9 +73,5 @@ func (s *Server) revertRule(c *gin.Context) {
 		}
 	}
 	e, err := b.Revert(c.Request.Context(), seq, s.actor(c), in.Why)
-	if s.ruleError(c, err) {
-		return
-	}
-	s.changed()
-	c.JSON(http.StatusOK, e)
+	s.ruleChanged(c, http.StatusOK, e, err)
 }

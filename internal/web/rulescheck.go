@@ -1,8 +1,6 @@
 package web
 
 import (
-	"bytes"
-	"encoding/json"
 	"errors"
 	"net/http"
 	"regexp"
@@ -28,21 +26,8 @@ var ruleID = regexp.MustCompile(`^[A-Za-z0-9._~-]{1,64}$`)
 // bindRule reads a rule body, rejecting unknown fields.
 func bindRule(c *gin.Context) (ruleIn, bool) {
 	var in ruleIn
-	body, ok := readJSONBody(c)
-	if !ok {
-		return in, false
-	}
-	dec := json.NewDecoder(bytes.NewReader(body))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&in); err != nil || dec.More() {
-		msg := "malformed JSON"
-		if err != nil {
-			msg += ": " + err.Error()
-		}
-		apiError(c, http.StatusBadRequest, "malformed_json", msg)
-		return in, false
-	}
-	return in, true
+	ok := bindStrict(c, &in)
+	return in, ok
 }
 
 // checkRule validates r as it would stand among the stored rules (without

@@ -5,17 +5,13 @@ import (
 	"crypto/rand"
 	"crypto/sha256"
 	"encoding/hex"
-	"encoding/json"
 	"errors"
 	"fmt"
-	"io"
 	"math"
-	"mime"
 	"net/http"
 	"strconv"
 	"strings"
 	"time"
-	"unicode/utf8"
 
 	"github.com/gin-gonic/gin"
 
@@ -75,35 +71,15 @@ func (s *Server) signals(c *gin.Context) {
 		apiError(c, http.StatusServiceUnavailable, "no_store", "this server records no events")
 		return
 	}
-	if mt, _, err := mime.ParseMediaType(c.GetHeader("Content-Type")); err != nil || mt != "application/json" {
-		apiError(c, http.StatusUnsupportedMediaType, "content_type", "send application/json")
+	// readJSONBody refuses invalid UTF-8, which encoding/json would
+	// silently turn into U+FFFD, storing something the client did not send
+	// (RFC 8259, section 8.1: JSON text exchanged between systems is UTF-8).
+	body, ok := readJSONBody(c)
+	if !ok {
 		return
 	}
-	body, err := io.ReadAll(io.LimitReader(c.Request.Body, maxBody+1))
-	if err != nil {
-		apiError(c, http.StatusBadRequest, "bad_body", "could not read the body")
-		return
-	}
-	if len(body) > maxBody {
-		apiError(c, http.StatusRequestEntityTooLarge, "too_large", "the body exceeds 1 MiB")
-		return
-	}
-	// encoding/json would silently turn invalid UTF-8 into U+FFFD, storing
-	// something the client did not send; refuse it instead (RFC 8259,
-	// section 8.1: JSON text exchanged between systems is UTF-8).
-	if !utf8.Valid(body) {
-		apiError(c, http.StatusBadRequest, "invalid_utf8", "the body is not valid UTF-8")
-		return
-	}
-	dec := json.NewDecoder(strings.NewReader(string(body)))
-	dec.DisallowUnknownFields()
 	var in signalsIn
-	if err := dec.Decode(&in); err != nil || dec.More() {
-		msg := "malformed JSON"
-		if err != nil {
-			msg = "malformed JSON: " + err.Error()
-		}
-		apiError(c, http.StatusBadRequest, "malformed_json", msg)
+	if !decodeStrict(c, body, &in) {
 		return
 	}
 	if len(in.Events) == 0 || len(in.Events) > store.MaxBatch {
@@ -119,7 +95,7 @@ func (s *Server) signals(c *gin.Context) {
 			Department: v.Department, GroupsHash: groupsHash(v), Query: s.f.CanonicalQuery(e.Query), Term: e.Term, Position: e.Position,
 			Doc: e.Doc, Rank: e.Rank, Terms: e.Terms, Sources: e.Sources}
 	}
-	err = s.opts.Events.Append(c.Request.Context(), batch)
+	err := s.opts.Events.Append(c.Request.Context(), batch)
 	switch {
 	case err == nil:
 		for _, e := range batch {
