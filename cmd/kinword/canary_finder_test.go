@@ -20,7 +20,8 @@ import (
 // association table, the learned ranking (insiders of the canary's group
 // accepted the canary and clicked its documents in the same department the
 // outsider searches from, so learning and snippet evidence both favour
-// it), and librarian pins, relates and refinements naming the canary.
+// it), librarian pins, relates and refinements naming the canary, and the
+// visibility check the librarian's and admin's desks filter by.
 // Zero leaks is the only passing figure.
 func TestFinderCanariesAcrossPaths(t *testing.T) {
 	ctx := context.Background()
@@ -77,8 +78,17 @@ func TestFinderCanariesAcrossPaths(t *testing.T) {
 		if r, _ := f.Search(ctx, finder.Request{Query: "policy", Viewer: insider}); strings.Contains(strings.ToLower(fmt.Sprint(r.Suggestions)), term) {
 			positive++
 		}
+		// The desks (review, rule preview) show a term only if the caller
+		// may read a document holding it.
+		if !f.Visible(insider, p.Key(term, "")) {
+			t.Errorf("%s: insider cannot see canary %q on the desks", group, term)
+		}
 		for _, v := range []access.Viewer{{Department: dept}, access.Anonymous, {Department: "field-operations"}} {
 			v = v.Normalize()
+			if f.Visible(v, p.Key(term, "")) || f.Visible(v, p.Key(term+" project", "")) {
+				t.Errorf("%s: viewer %s would see canary %q on the desks", group, v, term)
+				leaks++
+			}
 			for _, q := range queries {
 				res, err := f.Search(ctx, finder.Request{Query: q, Viewer: v, WithResults: true})
 				if err != nil {

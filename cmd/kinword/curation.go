@@ -22,9 +22,6 @@ import (
 // sentinels.
 type curation struct {
 	st *store.Store
-	// display turns stem and query keys into words for the review (nil:
-	// keys as they are).
-	display func(key string) string
 }
 
 var (
@@ -169,41 +166,7 @@ func (c curation) Review(ctx context.Context, opts review.Options) (*review.Repo
 	if err != nil {
 		return nil, err
 	}
-	return readable(review.Build(events, opts), c.display), nil
-}
-
-// readable rewrites a review's stem keys (terms, queries, rule drafts) into
-// the words people search with, so the review and its CSV files never show
-// stems where words can be shown.
-func readable(r *review.Report, display func(string) string) *review.Report {
-	if display == nil {
-		return r
-	}
-	memo := map[string]string{}
-	d := func(k string) string {
-		if k == "" {
-			return k
-		}
-		if v, ok := memo[k]; ok {
-			return v
-		}
-		v := display(k)
-		memo[k] = v
-		return v
-	}
-	for _, rows := range [][]review.TermRow{r.Terms, r.Pairs} {
-		for i := range rows {
-			rows[i].Term, rows[i].Query = d(rows[i].Term), d(rows[i].Query)
-		}
-	}
-	for _, list := range [][]review.Attention{r.RarelyAccepted, r.OftenDismissed, r.NoResults, r.NoSuggestions, r.Rescued} {
-		for i := range list {
-			a := &list[i]
-			a.Term, a.Query = d(a.Term), d(a.Query)
-			a.Draft.Term, a.Draft.Query = d(a.Draft.Term), d(a.Draft.Query)
-		}
-	}
-	return r
+	return review.Build(events, opts), nil
 }
 
 // rulesNow returns the web's RulesChanged hook: it brings the finder's rules

@@ -94,7 +94,7 @@ func (e *env) serveWith(ctx context.Context, addr string, demo bool, shared stri
 	}
 	opts := web.Options{Events: st, Addr: addr, Demo: demo, AllowedOrigins: e.cfg.Server.AllowedOrigins, Log: e.log, Tokens: tokens,
 		ShutdownGrace: time.Duration(e.cfg.Server.ShutdownGraceSeconds) * time.Second,
-		Rules:         curation{st: st}, Reviewer: curation{st: st, display: f.DisplayKey}, Pipeline: p, RulesChanged: rulesNow(ctx, e.log, st, f, p),
+		Rules:         curation{st: st}, Reviewer: curation{st: st}, Readers: f, Pipeline: p, RulesChanged: rulesNow(ctx, e.log, st, f, p),
 		Identity: web.Identity{DepartmentHeader: e.cfg.Server.DepartmentHeader, GroupsHeader: e.cfg.Server.GroupsHeader,
 			SecretHeader: e.cfg.Server.SecretHeader, Secret: os.Getenv("KINWORD_PROXY_SECRET"), TrustLoopback: e.cfg.Server.TrustLoopback},
 		RateLimit: web.RateLimit{PerSecond: e.cfg.Server.RatePerSecond, Burst: e.cfg.Server.RateBurst}, MaxBodyBytes: e.cfg.Server.MaxBodyBytes, MaxQueryBytes: e.cfg.Search.MaxQueryBytes,

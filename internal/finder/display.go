@@ -29,3 +29,29 @@ func (f *Finder) DisplayKey(key string) string {
 	}
 	return strings.Join(words, " ")
 }
+
+// Visible reports whether viewer v may read a document holding key: a
+// stem, a phrase key, or a canonical query key (then every word of it must
+// be in some readable document). The librarian's and admin's desks show
+// only such terms, as the search page does.
+func (f *Finder) Visible(v access.Viewer, key string) bool {
+	s, err := f.acquire()
+	if err != nil {
+		return false
+	}
+	defer s.release()
+	view := s.h.ix.View(v)
+	if view.KeyDF(key) > 0 {
+		return true
+	}
+	words := strings.Fields(key)
+	if len(words) < 2 {
+		return false
+	}
+	for _, w := range words {
+		if view.KeyDF(w) == 0 {
+			return false
+		}
+	}
+	return true
+}

@@ -77,7 +77,7 @@ func (s *Server) runReview(c *gin.Context) (*review.Report, bool) {
 		apiError(c, http.StatusInternalServerError, "internal", "the review failed")
 		return nil, false
 	}
-	return rep, true
+	return s.scopeReport(s.viewer(c), rep), true
 }
 
 // reviewReport answers GET /api/v1/review with the report as JSON.

@@ -53,6 +53,7 @@ func (s *Server) previewRule(c *gin.Context) {
 		at = in.Start
 	}
 	considered, changed := 0, 0
+	viewer := s.viewer(c)
 	samples := []previewSample{}
 	err = b.Impressions(c.Request.Context(), now.Add(-previewWindow), func(im Impression) error {
 		considered++
@@ -64,8 +65,14 @@ func (s *Server) previewRule(c *gin.Context) {
 		}
 		changed++
 		if len(samples) < previewSamples {
-			samples = append(samples, previewSample{Department: im.Department, Query: im.Query,
-				Before: nonNil(im.Shown), After: nonNil(after)})
+			// Samples show only what the caller may read, as words.
+			q, before, visible := s.scopeTerms(viewer, im.Query, im.Shown)
+			if !visible {
+				return nil
+			}
+			_, afterShown, _ := s.scopeTerms(viewer, im.Query, after)
+			samples = append(samples, previewSample{Department: im.Department, Query: q,
+				Before: nonNil(before), After: nonNil(afterShown)})
 		}
 		return nil
 	})

@@ -59,6 +59,10 @@ type Options struct {
 	// Pipeline analyses rule terms for validation and preview; nil means
 	// an English pipeline. Set it to the index's pipeline.
 	Pipeline *text.Pipeline
+	// Readers limits what the librarian's and admin's desks show to the
+	// terms and queries the caller may read, shown as words; nil shows
+	// every key as it is (tests).
+	Readers Readers
 	// RulesChanged, when set, is called after every successful rule
 	// change, before the answer is sent, so the server can apply the
 	// change at once instead of at its next refresh; keep it short (one
