@@ -89,9 +89,6 @@ func (e *env) serveWith(ctx context.Context, addr string, demo bool, shared stri
 	retention := time.Duration(e.cfg.Store.RetentionDays) * 24 * time.Hour
 	go learnLoop(ctx, e.log, st, f, &rulesRefresher{st: st, f: f, p: p}, refresh, retention)
 	go pruneLoop(ctx, e.log, st, retention)
-	if rep != nil {
-		go rep.loop(ctx, f, refresh)
-	}
 	opts := web.Options{Events: st, Addr: addr, Demo: demo, AllowedOrigins: e.cfg.Server.AllowedOrigins, Log: e.log, Tokens: tokens,
 		ShutdownGrace: time.Duration(e.cfg.Server.ShutdownGraceSeconds) * time.Second,
 		Rules:         curation{st: st}, Reviewer: curation{st: st}, Readers: f, Pipeline: p, RulesChanged: rulesNow(ctx, e.log, st, f, p),
@@ -105,6 +102,10 @@ func (e *env) serveWith(ctx context.Context, addr string, demo bool, shared stri
 	srv, err := web.New(f, opts)
 	if err != nil {
 		return err
+	}
+	if rep != nil {
+		rep.count = srv.CountReload
+		go rep.loop(ctx, f, refresh)
 	}
 	hup := make(chan os.Signal, 1)
 	signal.Notify(hup, syscall.SIGHUP)

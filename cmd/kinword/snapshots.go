@@ -37,6 +37,15 @@ type replica struct {
 	// mismatch; swaps counts versions swapped in after start.
 	rejected, swaps atomic.Int64
 	refused         map[string]bool // rejected versions, not retried
+	// count, when set before loop starts, counts each swap and each
+	// rejected or failed version in kinword_reload_total.
+	count func(ok bool)
+}
+
+func (r *replica) counted(ok bool) {
+	if r.count != nil {
+		r.count(ok)
+	}
 }
 
 func newReplica(shared, data string, log *slog.Logger) *replica {
@@ -94,6 +103,7 @@ func (r *replica) fetchCurrent(ctx context.Context) (string, string, error) {
 		r.refused[v] = true
 		n := r.rejected.Add(1)
 		r.log.Error("snapshots: version rejected; the old one keeps serving", "version", v, "err", err, "rejected_total", n)
+		r.counted(false)
 	}
 	return v, dir, err
 }
@@ -228,8 +238,10 @@ func (r *replica) step(ctx context.Context, f *finder.Finder) {
 	closed, err := f.Swap(ctx, dir, v)
 	if err != nil {
 		r.log.Error("snapshots: swap failed; the old version keeps serving", "version", v, "err", err)
+		r.counted(false)
 		return
 	}
+	r.counted(true)
 	n := r.swaps.Add(1)
 	r.log.Warn("snapshots: swapped", "from", old, "to", v, "fetch_ms", fetched.Milliseconds(),
 		"swap_ms", (time.Since(start) - fetched).Milliseconds(), "documents", f.Status().Documents, "swaps_total", n)

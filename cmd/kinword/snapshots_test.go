@@ -85,6 +85,14 @@ func TestSnapshotCorruptVersionIsRejected(t *testing.T) {
 			var logs bytes.Buffer
 			replicaData := t.TempDir()
 			r := newReplica(shared, replicaData, slog.New(slog.NewTextHandler(&logs, nil)))
+			var okN, failedN int // what kinword_reload_total would count
+			r.count = func(ok bool) {
+				if ok {
+					okN++
+				} else {
+					failedN++
+				}
+			}
 			dir, v := r.start(ctx, replicaData)
 			if v != a.Version {
 				t.Fatalf("start serves %q, want %q:\n%s", v, a.Version, &logs)
@@ -121,6 +129,9 @@ func TestSnapshotCorruptVersionIsRejected(t *testing.T) {
 			r.step(ctx, f)
 			if f.Version() != good.Version || f.Status().Documents != 30 {
 				t.Errorf("after a good version: serving %q with %d documents, want %q with 30\n%s", f.Version(), f.Status().Documents, good.Version, &logs)
+			}
+			if failedN != 1 || okN != 1 {
+				t.Errorf("reload metric counts: %d failed, %d ok; want 1 and 1", failedN, okN)
 			}
 		})
 	}

@@ -47,3 +47,14 @@ func (s *Server) reload(c *gin.Context) {
 	}
 	c.JSON(http.StatusOK, gin.H{"status": "reloaded", "loaded": s.f.Status()})
 }
+
+// CountReload counts a swap done outside Reload (a replica installing a
+// published snapshot) in kinword_reload_total, so a rejected or failed
+// snapshot shows in the same metric as a failed reload.
+func (s *Server) CountReload(ok bool) {
+	if ok {
+		s.metrics.reloads.WithLabelValues("ok").Inc()
+		return
+	}
+	s.metrics.reloads.WithLabelValues("failed").Inc()
+}
