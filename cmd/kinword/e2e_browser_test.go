@@ -204,6 +204,13 @@ func TestE2EBrowserBlockAndReview(t *testing.T) {
 		if !strings.HasSuffix(head, fmt.Sprintf("(%d)", len(rows))) {
 			t.Errorf("attention list %s: heading %q, want %d rows", list, head, len(rows))
 		}
+		if list == "rarely_accepted" && len(rows) == 0 {
+			t.Errorf("no rarely accepted suggestion after the simulated traffic: the attention list shows nothing to act on")
+		}
+	}
+	// Attention rows link to rule drafts on the librarian's desk.
+	if n := e2eEval[int](t, b, `document.querySelectorAll('#att-rarely_accepted a[href^="/librarian?"]').length`); n == 0 {
+		t.Errorf("rarely accepted rows carry no rule-draft link")
 	}
 	b.clean(t, "/admin")
 	b.shot(t, "admin")

@@ -3,6 +3,7 @@ package review
 import (
 	"fmt"
 	"strconv"
+	"strings"
 	"testing"
 	"time"
 )
@@ -96,7 +97,7 @@ func TestAttentionLists(t *testing.T) {
 		shown("e1", "s9", "finance", "tariff", at(0), 4),
 		shown("e2", "s9", "finance", "tariff", at(time.Minute), 0),
 		shown("e3", "s9", "finance", "tariff", at(2*time.Minute), 4, "rate"))
-	r := Build(events, Options{})
+	r := Build(events, Options{LowRate: 0.05})
 	list := func(as []Attention) string {
 		var s string
 		for _, a := range as {
@@ -119,6 +120,10 @@ func TestAttentionLists(t *testing.T) {
 	d := r.RarelyAccepted[1].Draft
 	if d != (RuleDraft{Kind: DraftBlock, Query: "pump", Term: "impeller", Department: "operations"}) {
 		t.Errorf("draft %+v", d)
+	}
+	// The default LowRate (0.10) lists casing too: 0.087621 < 0.10.
+	if got := list(Build(events, Options{}).RarelyAccepted); !strings.Contains(got, "|pump|casing 0/40") {
+		t.Errorf("default thresholds: rarely accepted %s lacks casing", got)
 	}
 	// Tighter thresholds move pairs on and off the lists.
 	r = Build(events, Options{LowRate: 0.09, DismissRate: 0.5, MinImpressions: 10})

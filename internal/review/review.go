@@ -48,7 +48,7 @@ const (
 	DefaultBucket         = 24 * time.Hour    // trend bucket width
 	DefaultWindow         = 30 * time.Minute  // accept -> click / rescue window
 	DefaultMinImpressions = 20                // impressions before a pair can need attention
-	DefaultLowRate        = 0.05              // rarely accepted: upper bound below this
+	DefaultLowRate        = 0.10              // rarely accepted: upper bound below this
 	DefaultDismissRate    = 0.25              // often dismissed: dismissals/impressions at least this
 	PropensityFloor       = 0.05              // propensities are clipped from below to this
 	MaxBuckets            = 10000             // the trend never has more buckets; Bucket widens instead
@@ -92,7 +92,9 @@ type Options struct {
 	// default 20.
 	MinImpressions int
 	// LowRate lists a pair as rarely accepted when the upper end of its
-	// corrected rate's 95% interval is below it; default 0.05.
+	// corrected rate's 95% interval is below it; default 0.10 (with the
+	// interval widened by position correction, 0.05 listed nothing on the
+	// demo's simulated traffic, not even a term accepted 0 times in 102).
 	LowRate float64
 	// DismissRate lists a pair as often dismissed when dismissals per
 	// impression reach it; default 0.25.
