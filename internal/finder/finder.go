@@ -103,7 +103,14 @@ type state struct {
 	tbl     *assoc.Table
 	eng     *suggest.Engine
 	loaded  time.Time
+	// seq numbers states in the order they were built; suggestion lists
+	// are cached under it, so a request still finishing on a replaced
+	// snapshot can never leave its list for requests on the new one.
+	seq uint64
 }
+
+// stateSeq hands out state sequence numbers.
+var stateSeq atomic.Uint64
 
 // Finder serves searches. It is safe for concurrent use.
 type Finder struct {

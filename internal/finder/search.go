@@ -2,6 +2,7 @@ package finder
 
 import (
 	"context"
+	"strconv"
 	"strings"
 	"time"
 
@@ -152,7 +153,7 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 // suggestions offers terms from the viewer's own top results, cached per
 // viewer scope, query and accepted terms.
 func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []index.QueryTerm, accepted []string, res index.Result, impression, salt string, eff curate.Effect, marked int) []suggest.Suggestion {
-	key := v.Key() + "\x00" + canonical(q) + "\x00" + strings.Join(accepted, "|") + "\x00" + salt
+	key := strconv.FormatUint(s.seq, 10) + "\x00" + v.Key() + "\x00" + canonical(q) + "\x00" + strings.Join(accepted, "|") + "\x00" + salt
 	if c, ok := f.cache.Get(key); ok && !f.noCache {
 		return c.([]suggest.Suggestion)
 	}

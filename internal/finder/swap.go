@@ -96,7 +96,7 @@ func (f *Finder) buildState(ctx context.Context, h *handle, table, version strin
 	if err := ctx.Err(); err != nil {
 		return nil, fmt.Errorf("finder: reload: %w", err)
 	}
-	return &state{h: h, table: table, version: version, tbl: tbl, eng: eng, loaded: time.Now()}, nil
+	return &state{h: h, table: table, version: version, tbl: tbl, eng: eng, loaded: time.Now(), seq: stateSeq.Add(1)}, nil
 }
 
 // Swap replaces the index and the association table the finder serves
