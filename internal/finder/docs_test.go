@@ -13,7 +13,6 @@ import (
 
 	"kinword/internal/access"
 	"kinword/internal/doc"
-	"kinword/internal/index"
 	"kinword/internal/ingest"
 	"kinword/internal/text"
 )
@@ -21,26 +20,15 @@ import (
 // openTestFinder indexes two open documents and opens a finder on them.
 func openTestFinder(t *testing.T) (*Finder, string) {
 	t.Helper()
-	dir := t.TempDir()
+	dir := writeDataDir(t, []doc.Document{
+		{ID: "a", Title: "Main break response", Body: "Crews isolate the valve after a main break."},
+		{ID: "b", Title: "Burst pipe advice", Body: "A burst pipe in the street is a main break."},
+	})
 	p, err := text.NewPipeline("")
 	if err != nil {
 		t.Fatal(err)
 	}
 	ctx := context.Background()
-	ix, err := index.Open(ctx, filepath.Join(dir, "index"), index.Options{Pipeline: p})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := ix.Put(ctx, []doc.Document{
-		{ID: "a", Title: "Main break response", Body: "Crews isolate the valve after a main break."},
-		{ID: "b", Title: "Burst pipe advice", Body: "A burst pipe in the street is a main break."},
-	}); err != nil {
-		t.Fatal(err)
-	}
-	if err := ix.Commit(ctx); err != nil {
-		t.Fatal(err)
-	}
-	ix.Close()
 	f, err := Open(ctx, dir, p, Options{})
 	if err != nil {
 		t.Fatal(err)

@@ -94,19 +94,9 @@ func NewMixture(opt MixtureOptions) (*Mixture, error) {
 // feedback Feedback is nil and Query is the original query as the
 // distribution weight/Σweight; without usable query terms Query is θ_F.
 func (m *Mixture) Expand(q []QueryTerm, docs []Doc, st Stats) Result {
-	qt, qsum := mergeQuery(q)
-	var qdist []Weighted
-	if qsum > 0 {
-		qdist = normalised(qt, qsum)
-	}
-	var res Result
-	if fb := prepare(docs, m.docs); len(fb) > 0 {
-		var theta []Weighted
-		theta, res.Iterations = m.fit(pool(fb, func(_, tf int) float64 { return float64(tf) }), st)
-		res.Feedback = renormalise(topN(theta, m.terms))
-	}
-	res.Query = combine(qdist, res.Feedback, m.orig)
-	return res
+	return expandFrame(q, docs, m.docs, m.terms, m.orig, func(_ []Weighted, fb []fbDoc) ([]Weighted, int) {
+		return m.fit(pool(fb, func(_, tf int) float64 { return float64(tf) }), st)
+	})
 }
 
 // fit runs EM on the pooled counts (sorted by ID) and returns p(w|θ_F) in

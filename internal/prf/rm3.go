@@ -81,19 +81,10 @@ func NewRM3(opt RM3Options) (*RM3, error) {
 // (CF 0) would give every document likelihood zero and says nothing about
 // which document is relevant, so it is left out of P(Q|D).
 func (m *RM3) Expand(q []QueryTerm, docs []Doc, st Stats) Result {
-	qt, qsum := mergeQuery(q)
-	var qdist []Weighted
-	if qsum > 0 {
-		qdist = normalised(qt, qsum)
-	}
-	var res Result
-	if fb := prepare(docs, m.docs); len(fb) > 0 {
+	return expandFrame(q, docs, m.docs, m.terms, m.lambda, func(qt []Weighted, fb []fbDoc) ([]Weighted, int) {
 		post := m.posterior(qt, fb, st)
-		rel := pool(fb, func(d, tf int) float64 { return post[d] * float64(tf) / fb[d].len })
-		res.Feedback = renormalise(topN(rel, m.terms))
-	}
-	res.Query = combine(qdist, res.Feedback, m.lambda)
-	return res
+		return pool(fb, func(d, tf int) float64 { return post[d] * float64(tf) / fb[d].len }), 0
+	})
 }
 
 // posterior returns P(Q|D) / Σ_D' P(Q|D') for every feedback document,

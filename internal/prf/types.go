@@ -162,6 +162,27 @@ func normalised(ws []Weighted, sum float64) []Weighted {
 
 // combine returns the expanded query of RM3 and Mixture: the interpolation
 // of qdist and the feedback model, or whichever of the two is non-empty.
+// expandFrame is the frame RM3 and the mixture model share: merge the
+// query, choose the feedback documents (the k highest-scoring), let model
+// turn them into a feedback distribution over the merged query (returning
+// it with the EM iterations it ran, 0 for none), cut that to terms and
+// renormalise it, and interpolate it with the query at weight lambda.
+func expandFrame(q []QueryTerm, docs []Doc, k, terms int, lambda float64, model func(qt []Weighted, fb []fbDoc) ([]Weighted, int)) Result {
+	qt, qsum := mergeQuery(q)
+	var qdist []Weighted
+	if qsum > 0 {
+		qdist = normalised(qt, qsum)
+	}
+	var res Result
+	if fb := prepare(docs, k); len(fb) > 0 {
+		var dist []Weighted
+		dist, res.Iterations = model(qt, fb)
+		res.Feedback = renormalise(topN(dist, terms))
+	}
+	res.Query = combine(qdist, res.Feedback, lambda)
+	return res
+}
+
 func combine(qdist, feedback []Weighted, lambda float64) []Weighted {
 	var out []Weighted
 	switch {

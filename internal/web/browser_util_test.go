@@ -13,10 +13,7 @@ import (
 	"time"
 
 	"kinword/internal/doc"
-	"kinword/internal/finder"
-	"kinword/internal/index"
 	"kinword/internal/store"
-	"kinword/internal/text"
 )
 
 // chromiumPath is where the CI image (and Debian's chromium package)
@@ -74,26 +71,7 @@ func newBrowserFixture(t *testing.T) *browserFixture {
 	t.Helper()
 	ctx := context.Background()
 	dir := t.TempDir()
-	p, err := text.NewPipeline("")
-	if err != nil {
-		t.Fatal(err)
-	}
-	ix, err := index.Open(ctx, filepath.Join(dir, "index"), index.Options{Pipeline: p})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := ix.Put(ctx, browserCorpus()); err != nil {
-		t.Fatal(err)
-	}
-	if err := ix.Commit(ctx); err != nil {
-		t.Fatal(err)
-	}
-	ix.Close()
-	f, err := finder.Open(ctx, dir, p, finder.Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(func() { f.Close() })
+	f := indexFinder(t, dir, browserCorpus())
 	st, err := store.Open(ctx, "sqlite:"+filepath.Join(dir, "events.db"))
 	if err != nil {
 		t.Fatal(err)

@@ -12,8 +12,6 @@ import (
 	"testing"
 
 	"kinword/internal/doc"
-	"kinword/internal/finder"
-	"kinword/internal/index"
 	"kinword/internal/store"
 	"kinword/internal/text"
 )
@@ -30,28 +28,9 @@ func fuzzServers(f *testing.F) (withSink, noSink *Server) {
 	f.Helper()
 	ctx := context.Background()
 	dir := f.TempDir()
-	p, err := text.NewPipeline("")
-	if err != nil {
-		f.Fatal(err)
-	}
-	ix, err := index.Open(ctx, filepath.Join(dir, "index"), index.Options{Pipeline: p})
-	if err != nil {
-		f.Fatal(err)
-	}
 	docs := append(browserCorpus(), doc.Document{ID: fuzzCanary + "-review", Title: "Kestrelmoor valve review",
 		Body: "The Kestrelmoor programme reviews valve and hydrant security.", Groups: []string{"executive"}})
-	if err := ix.Put(ctx, docs); err != nil {
-		f.Fatal(err)
-	}
-	if err := ix.Commit(ctx); err != nil {
-		f.Fatal(err)
-	}
-	ix.Close()
-	fd, err := finder.Open(ctx, dir, p, finder.Options{})
-	if err != nil {
-		f.Fatal(err)
-	}
-	f.Cleanup(func() { fd.Close() })
+	fd := indexFinder(f, dir, docs)
 	st, err := store.Open(ctx, "sqlite:"+filepath.Join(dir, "events.db"))
 	if err != nil {
 		f.Fatal(err)

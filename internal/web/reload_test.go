@@ -17,8 +17,6 @@ import (
 	"kinword/internal/assoc"
 	"kinword/internal/doc"
 	"kinword/internal/finder"
-	"kinword/internal/index"
-	"kinword/internal/text"
 )
 
 // reloadServer indexes a small corpus in a data folder without an
@@ -26,29 +24,12 @@ import (
 func reloadServer(t *testing.T) (s *Server, dataDir, admin string) {
 	t.Helper()
 	dataDir = t.TempDir()
-	p, _ := text.NewPipeline("")
-	ctx := context.Background()
-	ix, err := index.Open(ctx, filepath.Join(dataDir, "index"), index.Options{Pipeline: p})
-	if err != nil {
-		t.Fatal(err)
-	}
 	var docs []doc.Document
 	for i := 0; i < 12; i++ {
 		docs = append(docs, doc.Document{ID: fmt.Sprintf("n%02d", i), Title: fmt.Sprintf("Network note %d", i),
 			Body: "A main break needs the valve closed; a burst pipe is a main break. Valve records sit in the register."})
 	}
-	if err := ix.Put(ctx, docs); err != nil {
-		t.Fatal(err)
-	}
-	if err := ix.Commit(ctx); err != nil {
-		t.Fatal(err)
-	}
-	ix.Close()
-	f, err := finder.Open(ctx, dataDir, p, finder.Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(func() { f.Close() })
+	f := indexFinder(t, dataDir, docs)
 	admin, sum, err := NewToken()
 	if err != nil {
 		t.Fatal(err)

@@ -27,9 +27,18 @@ func (s *Server) scopeReport(v access.Viewer, r *review.Report) *review.Report {
 	if rd == nil {
 		return r
 	}
+	seen := map[string]bool{} // key -> visible, asked once per key
 	ok := func(keys ...string) bool {
 		for _, k := range keys {
-			if k != "" && !rd.Visible(v, k) {
+			if k == "" {
+				continue
+			}
+			vis, asked := seen[k]
+			if !asked {
+				vis = rd.Visible(v, k)
+				seen[k] = vis
+			}
+			if !vis {
 				return false
 			}
 		}

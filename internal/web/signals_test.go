@@ -15,40 +15,13 @@ import (
 	"testing"
 	"time"
 
-	"kinword/internal/doc"
-	"kinword/internal/finder"
-	"kinword/internal/index"
 	"kinword/internal/store"
-	"kinword/internal/text"
 )
 
 // newSignalServer is newTestServer's corpus with sink as the event sink.
 func newSignalServer(t *testing.T, sink EventSink) *Server {
 	t.Helper()
-	dir := t.TempDir()
-	p, _ := text.NewPipeline("")
-	ix, err := index.Open(context.Background(), dir+"/index", index.Options{Pipeline: p})
-	if err != nil {
-		t.Fatal(err)
-	}
-	docs := []doc.Document{
-		{ID: "a", Title: "Main break response", Body: "Crews isolate the valve after a main break on the trunk main.", Department: "field-operations"},
-		{ID: "b", Title: "Burst pipe advice", Body: "A burst pipe in the street is a main break; call the network desk.", Department: "customer-care"},
-		{ID: "c", Title: "Valve exercising", Body: "Every valve is exercised yearly; valve records sit in the asset register.", Department: "asset-engineering"},
-	}
-	if err := ix.Put(context.Background(), docs); err != nil {
-		t.Fatal(err)
-	}
-	if err := ix.Commit(context.Background()); err != nil {
-		t.Fatal(err)
-	}
-	ix.Close()
-	f, err := finder.Open(context.Background(), dir, p, finder.Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(func() { f.Close() })
-	s, err := New(f, Options{Events: sink})
+	s, err := New(indexFinder(t, t.TempDir(), testDocs[:3]), Options{Events: sink})
 	if err != nil {
 		t.Fatal(err)
 	}

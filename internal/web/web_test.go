@@ -6,6 +6,7 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"net/url"
+	"path/filepath"
 	"strings"
 	"testing"
 
@@ -17,33 +18,46 @@ import (
 
 // newTestServer indexes a small corpus with one restricted document whose
 // canary word ("kestrelmoor", invented) appears nowhere else.
-func newTestServer(t *testing.T) *Server {
+// testDocs is the small corpus of the API tests: three open documents of
+// three departments and one the executive group alone may read.
+var testDocs = []doc.Document{
+	{ID: "a", Title: "Main break response", Body: "Crews isolate the valve after a main break on the trunk main.", Department: "field-operations"},
+	{ID: "b", Title: "Burst pipe advice", Body: "A burst pipe in the street is a main break; call the network desk.", Department: "customer-care"},
+	{ID: "c", Title: "Valve exercising", Body: "Every valve is exercised yearly; valve records sit in the asset register.", Department: "asset-engineering"},
+	{ID: "s", Title: "Kestrelmoor valve review", Body: "The Kestrelmoor programme reviews valve security.", Groups: []string{"executive"}},
+}
+
+// indexFinder indexes docs into the data folder dir (no association
+// table) and opens a finder on it, closed when the test ends.
+func indexFinder(t testing.TB, dir string, docs []doc.Document) *finder.Finder {
 	t.Helper()
-	dir := t.TempDir()
-	p, _ := text.NewPipeline("")
-	ix, err := index.Open(context.Background(), dir+"/index", index.Options{Pipeline: p})
+	ctx := context.Background()
+	p, err := text.NewPipeline("")
 	if err != nil {
 		t.Fatal(err)
 	}
-	docs := []doc.Document{
-		{ID: "a", Title: "Main break response", Body: "Crews isolate the valve after a main break on the trunk main.", Department: "field-operations"},
-		{ID: "b", Title: "Burst pipe advice", Body: "A burst pipe in the street is a main break; call the network desk.", Department: "customer-care"},
-		{ID: "c", Title: "Valve exercising", Body: "Every valve is exercised yearly; valve records sit in the asset register.", Department: "asset-engineering"},
-		{ID: "s", Title: "Kestrelmoor valve review", Body: "The Kestrelmoor programme reviews valve security.", Groups: []string{"executive"}},
-	}
-	if err := ix.Put(context.Background(), docs); err != nil {
+	ix, err := index.Open(ctx, filepath.Join(dir, "index"), index.Options{Pipeline: p})
+	if err != nil {
 		t.Fatal(err)
 	}
-	if err := ix.Commit(context.Background()); err != nil {
+	if err := ix.Put(ctx, docs); err != nil {
+		t.Fatal(err)
+	}
+	if err := ix.Commit(ctx); err != nil {
 		t.Fatal(err)
 	}
 	ix.Close()
-	f, err := finder.Open(context.Background(), dir, p, finder.Options{})
+	f, err := finder.Open(ctx, dir, p, finder.Options{})
 	if err != nil {
 		t.Fatal(err)
 	}
 	t.Cleanup(func() { f.Close() })
-	s, err := New(f, Options{Identity: Identity{Secret: "s3cret"}})
+	return f
+}
+
+func newTestServer(t *testing.T) *Server {
+	t.Helper()
+	s, err := New(indexFinder(t, t.TempDir(), testDocs), Options{Identity: Identity{Secret: "s3cret"}})
 	if err != nil {
 		t.Fatal(err)
 	}
