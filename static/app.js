@@ -104,7 +104,12 @@
       }, "Add"));
     });
     el("sugg-box").hidden = shown.length === 0;
-    el("status").textContent = resp.total + (resp.total === 1 ? " document" : " documents") + " found";
+    var status = resp.total + (resp.total === 1 ? " document" : " documents") + " found";
+    if (resp.expanded && resp.expanded.length) {
+      // The automatic mode added these words from your own top results.
+      status += "; also searched for " + resp.expanded.map(function (x) { return x.display; }).join(", ");
+    }
+    el("status").textContent = status;
     resp.results.forEach(function (r) {
       var li = document.createElement("li");
       var a = text("a", r.title, "kw-title");

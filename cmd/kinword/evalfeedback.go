@@ -150,6 +150,9 @@ func (c feedbackConfig) String(method string) string {
 	if method == "rocchio" {
 		return fmt.Sprintf("docs=%d terms=%d beta=%.2f", c.Docs, c.Terms, rocchioBeta(c))
 	}
+	if method == "blend" {
+		return fmt.Sprintf("docs=%d terms=%d orig=%.2f background=%.2f mu=%d", c.Docs, c.Terms, c.Orig, c.Alt, blendMu)
+	}
 	if method == "rm3" {
 		return fmt.Sprintf("docs=%d terms=%d orig=%.2f mu=%.0f", c.Docs, c.Terms, c.Orig, c.Alt)
 	}

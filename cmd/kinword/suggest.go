@@ -52,7 +52,7 @@ func runSuggest(ctx context.Context, e *env, args []string) error {
 	var viewer viewerFlag
 	fs.Var(&viewer, "viewer", "who is searching: dept=DEPT,groups=G1+G2 (default anonymous: open documents only)")
 	k := fs.Int("k", 5, "suggestions to offer")
-	model := fs.String("model", "rm3", "feedback model: rm3, mixture or rocchio")
+	model := fs.String("model", "rm3", "feedback model: rm3, mixture, blend or rocchio")
 	pos, err := e.parse(fs, c, args)
 	if err != nil {
 		return err

@@ -188,6 +188,9 @@ type Search struct {
 	MaxQueryBytes int `toml:"max_query_bytes"`
 	// MaxQueryTerms is the most distinct terms; default 32.
 	MaxQueryTerms int `toml:"max_query_terms"`
+	// AutoExpand expands every search without clicks (the automatic
+	// mode, from the searcher's own top results); default false.
+	AutoExpand bool `toml:"auto_expand"`
 }
 
 // Default returns the embedded defaults.

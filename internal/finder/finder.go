@@ -62,6 +62,14 @@ type Options struct {
 	// scope and query; default 30 s (the refresh interval); negative: never
 	// reused (every request computes its suggestions).
 	CacheTTL time.Duration
+	// AutoExpand turns on the automatic mode: a search with no accepted
+	// terms and no documents marked useful is expanded without clicks.
+	// The first pass's top results the viewer may read feed the engine's
+	// AutoExpand (its AutoModel, the blended feedback model by default),
+	// the expanded query is run, and Response.Expanded lists what was
+	// added; suggestions still come from the first pass. Default false
+	// (the searcher chooses). Costs a second search per query.
+	AutoExpand bool
 	// Version labels the folder Open opens in Status (a replica's
 	// snapshot version, see Swap); default empty.
 	Version string

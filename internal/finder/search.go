@@ -56,6 +56,21 @@ type Response struct {
 	Results     []Result             `json:"results"`
 	Suggestions []suggest.Suggestion `json:"suggestions"`
 	Impression  string               `json:"impression"`
+	// Expanded are the terms the automatic mode added (Options.AutoExpand),
+	// heaviest first; empty otherwise.
+	Expanded []Expansion `json:"expanded,omitempty"`
+}
+
+// Expansion is one term the automatic mode added to a query.
+type Expansion struct {
+	// Term is the stem or phrase key.
+	Term string `json:"term"`
+	// Display is how it reads: its commonest surface form among the
+	// documents the viewer may read.
+	Display string `json:"display"`
+	// Weight is its weight in the expanded query, relative to the query's
+	// strongest original term (1).
+	Weight float64 `json:"weight"`
 }
 
 // Request is one search.
@@ -123,6 +138,14 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 		return Response{}, err
 	}
 	fbRes := res
+	var expanded []Expansion
+	if f.opts.AutoExpand && len(accepted) == 0 && len(marked) == 0 {
+		if full, expanded = autoExpand(s, view, req.Viewer, full, res); len(expanded) > 0 {
+			if res, err = view.Search(ctx, full, f.opts.BM25, k); err != nil {
+				return Response{}, err
+			}
+		}
+	}
 	if len(marked) > 0 {
 		// Suggestions then draw on the marked documents first.
 		fbRes = withMarkedFirst(res, marked)
@@ -132,7 +155,7 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 		imp = newImpressionID()
 	}
 	out := Response{Query: req.Query, Accepted: accepted, Total: res.Total, Impression: imp,
-		Results: []Result{}}
+		Results: []Result{}, Expanded: expanded}
 	salt := ""
 	if len(marked) > 0 {
 		salt = "useful:" + strings.Join(cleanAccepted(req.Useful), ",")

@@ -64,4 +64,5 @@ func benchModel(b *testing.B, m expander) {
 
 func BenchmarkRM3(b *testing.B)     { benchModel(b, must(NewRM3(RM3Options{}))) }
 func BenchmarkMixture(b *testing.B) { benchModel(b, must(NewMixture(MixtureOptions{}))) }
+func BenchmarkBlend(b *testing.B)   { benchModel(b, must(NewBlend(BlendOptions{}))) }
 func BenchmarkRocchio(b *testing.B) { benchModel(b, must(NewRocchio(RocchioOptions{}))) }

@@ -27,6 +27,7 @@ func models() []struct {
 	}{
 		{"rm3", must(NewRM3(RM3Options{})), true},
 		{"mixture", must(NewMixture(MixtureOptions{})), true},
+		{"blend", must(NewBlend(BlendOptions{})), true},
 		{"rocchio", must(NewRocchio(RocchioOptions{})), false},
 	}
 }
@@ -45,7 +46,11 @@ func TestProperties(t *testing.T) {
 				res := md.m.Expand(q, docs, st)
 				checkSorted(t, "feedback", res.Feedback)
 				checkSorted(t, "query", res.Query)
-				if len(res.Feedback) == 0 || len(res.Feedback) > DefaultFeedbackTerms {
+				limit := DefaultFeedbackTerms
+				if md.name == "blend" {
+					limit *= 2 // each part keeps FeedbackTerms
+				}
+				if len(res.Feedback) == 0 || len(res.Feedback) > limit {
 					t.Errorf("seed %d: %d feedback terms", seed, len(res.Feedback))
 				}
 				if md.distr {
@@ -137,6 +142,12 @@ func TestBadOptions(t *testing.T) {
 		{"rocchio NaN Alpha", second(NewRocchio(RocchioOptions{Alpha: math.NaN()}))},
 		{"rocchio BM25 B above 1", second(NewRocchio(RocchioOptions{BM25: rank.BM25{B: 2}}))},
 		{"rocchio negative FeedbackTerms", second(NewRocchio(RocchioOptions{FeedbackTerms: -1}))},
+		{"rm3 unknown DocWeights", second(NewRM3(RM3Options{DocWeights: "scores"}))},
+		{"blend RM3Share above 1", second(NewBlend(BlendOptions{RM3Share: 1.5}))},
+		{"blend OrigWeight NaN", second(NewBlend(BlendOptions{OrigWeight: math.NaN()}))},
+		{"blend Background 1", second(NewBlend(BlendOptions{Background: 1}))},
+		{"blend negative Mu", second(NewBlend(BlendOptions{Mu: -5}))},
+		{"blend negative FeedbackDocs", second(NewBlend(BlendOptions{FeedbackDocs: -1}))},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -149,6 +160,7 @@ func TestBadOptions(t *testing.T) {
 		"rm3":     second(NewRM3(RM3Options{OrigWeight: 1, Mu: 3})),
 		"mixture": second(NewMixture(MixtureOptions{Background: 0.99, Tolerance: 1})),
 		"rocchio": second(NewRocchio(RocchioOptions{Alpha: -1, Gamma: 2})),
+		"blend":   second(NewBlend(BlendOptions{RM3Share: 1, OrigWeight: 1, DocWeights: DocWeightsGeometric})),
 	} {
 		if err != nil {
 			t.Errorf("%s: valid options rejected: %v", name, err)

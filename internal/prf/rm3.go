@@ -21,7 +21,20 @@ type RM3Options struct {
 	// flattens the document weights towards uniform; a μ near the mean
 	// document length weights them more sharply. Must not be negative.
 	Mu float64
+	// DocWeights says how feedback documents are weighted: "" or
+	// DocWeightsLikelihood (the posterior of P(Q|D), the relevance
+	// model's own) or DocWeightsGeometric (the posterior of
+	// P(Q|D)^(1/|Q|), |Q| the query's total weight: the per-word geometric
+	// mean, which keeps a long query from putting nearly all the weight on
+	// its single best document). Default DocWeightsLikelihood.
+	DocWeights string
 }
+
+// Document weightings of RM3Options.DocWeights.
+const (
+	DocWeightsLikelihood = "likelihood"
+	DocWeightsGeometric  = "geometric"
+)
 
 // DefaultMu is the default Dirichlet prior of RM3Options.Mu, in tokens.
 const DefaultMu = 1000
@@ -42,6 +55,7 @@ const DefaultMu = 1000
 type RM3 struct {
 	docs, terms int
 	lambda, mu  float64
+	weights     string
 }
 
 // NewRM3 returns an RM3 model with opt's defaults filled in. The error
@@ -51,16 +65,24 @@ func NewRM3(opt RM3Options) (*RM3, error) {
 		return nil, err
 	}
 	m := &RM3{
-		docs:   resolveCount(opt.FeedbackDocs, DefaultFeedbackDocs),
-		terms:  resolveCount(opt.FeedbackTerms, DefaultFeedbackTerms),
-		lambda: resolveFraction(opt.OrigWeight, DefaultOrigWeight),
-		mu:     opt.Mu,
+		docs:    resolveCount(opt.FeedbackDocs, DefaultFeedbackDocs),
+		terms:   resolveCount(opt.FeedbackTerms, DefaultFeedbackTerms),
+		lambda:  resolveFraction(opt.OrigWeight, DefaultOrigWeight),
+		mu:      opt.Mu,
+		weights: opt.DocWeights,
 	}
 	if !checkFraction(m.lambda, 1) {
 		return nil, errorf("rm3: OrigWeight %g not in [0, 1]", opt.OrigWeight)
 	}
 	if m.mu == 0 {
 		m.mu = DefaultMu
+	}
+	switch m.weights {
+	case "":
+		m.weights = DocWeightsLikelihood
+	case DocWeightsLikelihood, DocWeightsGeometric:
+	default:
+		return nil, errorf("rm3: DocWeights %q (want %q or %q)", opt.DocWeights, DocWeightsLikelihood, DocWeightsGeometric)
 	}
 	if !(m.mu > 0) || math.IsInf(m.mu, 1) {
 		return nil, errorf("rm3: Mu %g not a positive number", opt.Mu)
@@ -103,6 +125,15 @@ func (m *RM3) posterior(qt []Weighted, fb []fbDoc, st Stats) []float64 {
 		}
 	}
 	logp := make([]float64, len(fb))
+	temp := 1.0
+	if m.weights == DocWeightsGeometric {
+		// P(Q|D)^(1/|Q|): the log likelihood per unit of query weight.
+		temp = 0
+		for _, t := range terms {
+			temp += t.w
+		}
+		temp = max(temp, 1)
+	}
 	top := math.Inf(-1)
 	for i, d := range fb {
 		var l float64
@@ -110,8 +141,8 @@ func (m *RM3) posterior(qt []Weighted, fb []fbDoc, st Stats) []float64 {
 			tf := float64(termFreq(d.terms, t.id))
 			l += t.w * math.Log((tf+m.mu*t.pc)/(d.len+m.mu))
 		}
-		logp[i] = l
-		top = max(top, l)
+		logp[i] = l / temp
+		top = max(top, logp[i])
 	}
 	var sum float64
 	for i, l := range logp {

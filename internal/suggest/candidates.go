@@ -68,9 +68,12 @@ type run struct {
 }
 
 // prepare merges the query and selects the readable feedback documents:
-// the model's FeedbackDocs best by score (ties: earlier first), repeats
-// dropped.
-func (e *Engine) prepare(c Corpus, req Request) *run {
+// the suggestion model's FeedbackDocs best by score (ties: earlier first),
+// repeats dropped.
+func (e *Engine) prepare(c Corpus, req Request) *run { return e.prepareFor(c, req, e.sugg.fbDocs) }
+
+// prepareFor is prepare keeping the fbDocs best feedback documents.
+func (e *Engine) prepareFor(c Corpus, req Request, fbDocs int) *run {
 	r := &run{e: e, c: c, req: req, qstems: map[string]bool{}, cands: map[string]*cand{}, fbByKey: map[string]float64{}}
 	r.query = mergeQuery(req.Query)
 	for _, q := range r.query {
@@ -88,8 +91,8 @@ func (e *Engine) prepare(c Corpus, req Request) *run {
 		}
 	}
 	slices.SortStableFunc(hits, func(a, b Hit) int { return cmp.Compare(b.Score, a.Score) })
-	if len(hits) > e.fbDocs {
-		hits = hits[:e.fbDocs]
+	if len(hits) > fbDocs {
+		hits = hits[:fbDocs]
 	}
 	for _, h := range hits {
 		toks, _ := c.Tokens(h.Doc)
@@ -154,8 +157,8 @@ func (r *run) modelQuery() []prf.QueryTerm {
 	return out
 }
 
-// runModel runs the feedback model over the feedback documents.
-func (e *Engine) runModel(r *run) prf.Result {
+// run runs the feedback model over the run's feedback documents.
+func (m modelSetup) run(r *run) prf.Result {
 	if len(r.docs) == 0 {
 		return prf.Result{}
 	}
@@ -163,7 +166,7 @@ func (e *Engine) runModel(r *run) prf.Result {
 	for i, d := range r.docs {
 		docs[i] = prf.Doc{Terms: d.terms, Len: r.c.DocLen(d.d), Score: d.score}
 	}
-	return e.model.Expand(r.modelQuery(), docs, r.c)
+	return m.model.Expand(r.modelQuery(), docs, r.c)
 }
 
 // get returns the candidate for key, creating it.

@@ -107,14 +107,21 @@ type Request struct {
 type Engine struct {
 	tbl        *assoc.Table
 	opt        Options
-	model      feedbackModel
-	origCoef   float64 // λ (rm3, mixture) or α (rocchio), see AutoExpand
-	fbDocs     int     // feedback documents the model uses
+	sugg       modelSetup // the model behind suggestions (Options.Model)
+	auto       modelSetup // the model of AutoExpand (Options.AutoModel)
 	stop       text.Stopwords
 	tableMinDF int
 }
 
-// feedbackModel is the method the three prf models share.
+// modelSetup is a feedback model with the numbers its callers need.
+type modelSetup struct {
+	name     string // rm3, mixture, blend or rocchio
+	model    feedbackModel
+	origCoef float64 // λ (rm3, mixture, blend) or α (rocchio), see AutoExpand
+	fbDocs   int     // feedback documents the model uses
+}
+
+// feedbackModel is the method the prf models share.
 type feedbackModel interface {
 	Expand(q []prf.QueryTerm, docs []prf.Doc, st prf.Stats) prf.Result
 }
@@ -155,7 +162,7 @@ func (e *Engine) Suggest(c Corpus, req Request) []Suggestion {
 	if len(r.query) == 0 {
 		return []Suggestion{}
 	}
-	r.feedbackCandidates(e.runModel(r))
+	r.feedbackCandidates(e.sugg.run(r))
 	r.associationCandidates()
 	r.queryPhraseCandidates()
 	r.filter()

@@ -43,8 +43,8 @@ func Expand(query []QueryTerm, accepted []string, weight float64) []QueryTerm {
 	return out
 }
 
-// AutoExpand is the automatic mode: the query expanded with the feedback
-// model's strongest terms, interpolated as RM3 interpolates (Abdul-Jaleel
+// AutoExpand is the automatic mode: the query expanded with the strongest
+// terms of the AutoModel feedback model (over its own FeedbackDocs), interpolated as RM3 interpolates (Abdul-Jaleel
 // et al., TREC 2004), without asking the searcher. The original terms come
 // first, in order, at full weight normalised,
 //
@@ -55,11 +55,12 @@ func Expand(query []QueryTerm, accepted []string, weight float64) []QueryTerm {
 // form, numbers, short, DF and generic words), heaviest first (ties by
 // key), at
 //
-//	rm3, mixture: weight(t) = ((1−λ)/λ) · P(t|F) · (Σ_q w_q) / max_q w_q
+//	rm3, mixture, blend: weight(t) = ((1−λ)/λ) · P(t|F) · (Σ_q w_q) / max_q w_q
 //	rocchio:      weight(t) = F(t) / (α · max_q w_q)
 //
 // where P(t|F) is the model's feedback distribution (RM1 for rm3, θ_F for
-// mixture, each cut to FeedbackTerms and renormalised), F(t) Rocchio's
+// mixture, each cut to FeedbackTerms and renormalised, their average for
+// blend), F(t) Rocchio's
 // feedback component β·centroid, λ the model's OrigWeight and α Rocchio's
 // Alpha; the sums and maxima run over the words given to the model (a
 // phrase's words each at the phrase's weight). The factor is the one that
@@ -71,7 +72,7 @@ func Expand(query []QueryTerm, accepted []string, weight float64) []QueryTerm {
 // Without feedback documents, or for an empty query, it returns the
 // normalised original terms only.
 func (e *Engine) AutoExpand(c Corpus, req Request) []QueryTerm {
-	r := e.prepare(c, req)
+	r := e.prepareFor(c, req, e.auto.fbDocs)
 	out := make([]QueryTerm, 0, len(r.query)+e.opt.AutoTerms)
 	top := 0.0
 	for _, q := range r.query {
@@ -89,7 +90,7 @@ func (e *Engine) AutoExpand(c Corpus, req Request) []QueryTerm {
 		msum += q.Weight
 		mmax = max(mmax, q.Weight)
 	}
-	res := e.runModel(r)
+	res := e.auto.run(r)
 	fb := slices.Clone(res.Feedback)
 	slices.SortFunc(fb, func(a, b prf.Weighted) int {
 		if c := cmp.Compare(b.Weight, a.Weight); c != 0 {
@@ -113,12 +114,12 @@ func (e *Engine) AutoExpand(c Corpus, req Request) []QueryTerm {
 	}
 	var scale float64
 	switch {
-	case e.origCoef == 0 || mmax == 0:
+	case e.auto.origCoef == 0 || mmax == 0:
 		scale = 1 / exp[0].Weight
-	case e.opt.Model == "rocchio":
-		scale = 1 / (e.origCoef * mmax)
+	case e.auto.name == "rocchio":
+		scale = 1 / (e.auto.origCoef * mmax)
 	default:
-		scale = (1 - e.origCoef) / e.origCoef * msum / mmax
+		scale = (1 - e.auto.origCoef) / e.auto.origCoef * msum / mmax
 	}
 	// A query term the model also proposes gets the two parts summed, as in
 	// the model's own interpolated query.

@@ -65,16 +65,19 @@ func TestAutoExpandInterpolation(t *testing.T) {
 		orig  float64 // λ or α
 		sumQW bool    // divide by Σw (rm3, mixture)
 	}{
-		{"rm3 defaults", Options{}, func() (feedbackModel, error) {
+		{"rm3 defaults", Options{AutoModel: "rm3"}, func() (feedbackModel, error) {
 			return prf.NewRM3(prf.RM3Options{FeedbackTerms: DefaultFeedbackTerms})
 		}, prf.DefaultOrigWeight, true},
-		{"rm3 lambda 0.8", Options{RM3: prf.RM3Options{OrigWeight: 0.8}}, func() (feedbackModel, error) {
+		{"rm3 lambda 0.8", Options{AutoModel: "rm3", RM3: prf.RM3Options{OrigWeight: 0.8}}, func() (feedbackModel, error) {
 			return prf.NewRM3(prf.RM3Options{FeedbackTerms: DefaultFeedbackTerms, OrigWeight: 0.8})
 		}, 0.8, true},
-		{"mixture", Options{Model: "mixture"}, func() (feedbackModel, error) {
+		{"blend defaults", Options{}, func() (feedbackModel, error) {
+			return prf.NewBlend(prf.BlendOptions{FeedbackTerms: DefaultFeedbackTerms, Mu: DefaultBlendMu, Tolerance: DefaultBlendTolerance})
+		}, prf.DefaultOrigWeight, true},
+		{"mixture", Options{AutoModel: "mixture"}, func() (feedbackModel, error) {
 			return prf.NewMixture(prf.MixtureOptions{FeedbackTerms: DefaultFeedbackTerms})
 		}, prf.DefaultOrigWeight, true},
-		{"rocchio", Options{Model: "rocchio"}, func() (feedbackModel, error) {
+		{"rocchio", Options{AutoModel: "rocchio"}, func() (feedbackModel, error) {
 			return prf.NewRocchio(prf.RocchioOptions{FeedbackTerms: DefaultFeedbackTerms})
 		}, prf.DefaultAlpha, false},
 	}
@@ -145,7 +148,7 @@ func TestAutoExpandEdges(t *testing.T) {
 	}
 	// λ = 0: the expansion has no query part to be relative to; the
 	// strongest term gets weight 1.
-	e0, _ := New(nil, Options{RM3: prf.RM3Options{OrigWeight: -1}})
+	e0, _ := New(nil, Options{AutoModel: "rm3", RM3: prf.RM3Options{OrigWeight: -1}})
 	got := e0.AutoExpand(v, Request{Query: q, Feedback: v.rank("leak", 10)})
 	if len(got) < 2 {
 		t.Fatalf("lambda 0: %v", got)

@@ -1,0 +1,135 @@
+package prf
+
+import (
+	"cmp"
+	"slices"
+)
+
+// BlendOptions configure Blend. The zero value gives every default.
+type BlendOptions struct {
+	// FeedbackDocs is the number of highest-scoring documents both models
+	// read. Default 10; must not be negative.
+	FeedbackDocs int
+	// FeedbackTerms is the number of terms each model keeps before the two
+	// are averaged (so the blend holds up to twice as many). Default 20;
+	// must not be negative.
+	FeedbackTerms int
+	// OrigWeight is λ, the weight of the original query in
+	// w'(t) = λ·P(t|Q) + (1−λ)·P(t|F), in [0, 1]. Default 0.5; a negative
+	// value means 0.
+	OrigWeight float64
+	// RM3Share is the share s of the relevance model in the blended
+	// feedback distribution P(t|F) = s·P_RM1(t) + (1−s)·P_θF(t), in
+	// [0, 1]. Default 0.5; a negative value means 0 (the mixture model
+	// alone).
+	RM3Share float64
+	// Mu is the relevance model's Dirichlet prior, in tokens (see
+	// RM3Options.Mu). Default 1000.
+	Mu float64
+	// DocWeights is the relevance model's document weighting (see
+	// RM3Options.DocWeights). Default "likelihood".
+	DocWeights string
+	// Background is the mixture model's background weight (see
+	// MixtureOptions.Background). Default 0.5.
+	Background float64
+	// Tolerance and MaxIterations bound the mixture model's EM (see
+	// MixtureOptions). Defaults 1e-8 and 100.
+	Tolerance     float64
+	MaxIterations int
+}
+
+// DefaultRM3Share is the default BlendOptions.RM3Share.
+const DefaultRM3Share = 0.5
+
+// Blend averages two feedback models over the same feedback documents:
+// the relevance model RM1 of Lavrenko & Croft (SIGIR 2001), which weights
+// each document by its query likelihood, and the mixture-model θ_F of
+// Zhai & Lafferty (CIKM 2001), which weights documents equally and
+// discounts what the collection background explains. Each is cut to
+// FeedbackTerms and renormalised; their weighted average is interpolated
+// with the original query as RM3 does. Averaging the estimates of two
+// models is the linear opinion pool (common practice for combining
+// probability estimates); on the judged collections it was steadier across
+// cross-validation folds than either model alone (see the eval reports).
+type Blend struct {
+	rm3    *RM3
+	mix    *Mixture
+	lambda float64
+	share  float64
+}
+
+// NewBlend returns a blended model with opt's defaults filled in. The
+// error wraps ErrBadOptions.
+func NewBlend(opt BlendOptions) (*Blend, error) {
+	if err := checkCounts("blend", opt.FeedbackDocs, opt.FeedbackTerms); err != nil {
+		return nil, err
+	}
+	b := &Blend{
+		lambda: resolveFraction(opt.OrigWeight, DefaultOrigWeight),
+		share:  resolveFraction(opt.RM3Share, DefaultRM3Share),
+	}
+	if !checkFraction(b.lambda, 1) {
+		return nil, errorf("blend: OrigWeight %g not in [0, 1]", opt.OrigWeight)
+	}
+	if !checkFraction(b.share, 1) {
+		return nil, errorf("blend: RM3Share %g not in [0, 1]", opt.RM3Share)
+	}
+	var err error
+	// Each part gets a negative OrigWeight (meaning 0): only its feedback
+	// distribution is used.
+	if b.rm3, err = NewRM3(RM3Options{FeedbackDocs: opt.FeedbackDocs, FeedbackTerms: opt.FeedbackTerms, OrigWeight: -1, Mu: opt.Mu, DocWeights: opt.DocWeights}); err != nil {
+		return nil, err
+	}
+	if b.mix, err = NewMixture(MixtureOptions{FeedbackDocs: opt.FeedbackDocs, FeedbackTerms: opt.FeedbackTerms, OrigWeight: -1,
+		Background: opt.Background, Tolerance: opt.Tolerance, MaxIterations: opt.MaxIterations}); err != nil {
+		return nil, err
+	}
+	return b, nil
+}
+
+// Expand runs both models for q over docs and blends them. Result.Feedback
+// is the blended distribution s·P_RM1 + (1−s)·P_θF (sums to 1), Result.Query
+// its interpolation with the original query, and Result.Iterations the
+// mixture model's EM iterations. Without usable feedback it behaves as RM3
+// does: Feedback is nil and Query is the original query's distribution.
+func (b *Blend) Expand(q []QueryTerm, docs []Doc, st Stats) Result {
+	qt, qsum := mergeQuery(q)
+	var qdist []Weighted
+	if qsum > 0 {
+		qdist = normalised(qt, qsum)
+	}
+	var res Result
+	r := b.rm3.Expand(q, docs, st)
+	if r.Feedback != nil {
+		m := b.mix.Expand(q, docs, st)
+		res.Iterations = m.Iterations
+		res.Feedback = pour(r.Feedback, m.Feedback, b.share)
+	}
+	res.Query = combine(qdist, res.Feedback, b.lambda)
+	return res
+}
+
+// pour returns s·a + (1−s)·c over the union of the two distributions'
+// terms, zero weights dropped, sorted by weight (ties: term ID).
+func pour(a, c []Weighted, s float64) []Weighted {
+	out := make([]Weighted, 0, len(a)+len(c))
+	for _, t := range a {
+		out = append(out, Weighted{t.ID, s * t.Weight})
+	}
+	for _, t := range c {
+		out = append(out, Weighted{t.ID, (1 - s) * t.Weight})
+	}
+	slices.SortFunc(out, func(x, y Weighted) int { return cmp.Compare(x.ID, y.ID) })
+	n := 0
+	for _, t := range out {
+		if n > 0 && out[n-1].ID == t.ID {
+			out[n-1].Weight += t.Weight
+			continue
+		}
+		out[n] = t
+		n++
+	}
+	out = slices.DeleteFunc(out[:n], func(t Weighted) bool { return t.Weight <= 0 })
+	sortByWeight(out)
+	return out
+}
