@@ -238,6 +238,23 @@ func (t *Table) PhrasesFor(v access.Viewer) []Phrase {
 // first. A word absorbed into its phrases has few neighbours of its own;
 // its phrases are its natural refinements.
 func (t *Table) PhrasesWith(v access.Viewer, stem string) []Phrase {
+	return clonePhrases(t.phrasesWith(v, stem))
+}
+
+// PhrasesWithTop is PhrasesWith cut to the first n phrases (n < 0: all),
+// copying only those: the suggestion engine reads a few phrases per word,
+// and a common word is part of hundreds.
+func (t *Table) PhrasesWithTop(v access.Viewer, stem string, n int) []Phrase {
+	ps := t.phrasesWith(v, stem)
+	if n >= 0 && len(ps) > n {
+		ps = ps[:n]
+	}
+	return clonePhrases(ps)
+}
+
+// phrasesWith is PhrasesWith without the copy: the result may be shared
+// with the cache and must not be modified.
+func (t *Table) phrasesWith(v access.Viewer, stem string) []Phrase {
 	t.partsOnce.Do(func() {
 		t.parts = map[string][]uint32{}
 		for id := range t.numTerms() {
@@ -264,7 +281,7 @@ func (t *Table) PhrasesWith(v access.Viewer, stem string) []Phrase {
 	}
 	key := phraseCacheKey{stem, string(kb)}
 	if c, ok := t.withCache.Load(key); ok {
-		return clonePhrases(c.([]Phrase))
+		return c.([]Phrase)
 	}
 	var out []Phrase
 	for _, id := range ids {
@@ -289,7 +306,6 @@ func (t *Table) PhrasesWith(v access.Viewer, stem string) []Phrase {
 		if _, loaded := t.withCache.LoadOrStore(key, out); !loaded {
 			t.withN.Add(1)
 		}
-		return clonePhrases(out)
 	}
 	return out
 }

@@ -45,6 +45,7 @@ func BenchmarkLatency(b *testing.B) {
 		b.Fatal(err)
 	}
 	defer f.Close()
+	<-f.st.Load().warmed // as a server is some seconds after start
 	v := access.Anonymous
 	view := f.ix.View(v)
 	queries, accepted := benchQueries(b, f, view)

@@ -115,6 +115,9 @@ type state struct {
 	// are cached under it, so a request still finishing on a replaced
 	// snapshot can never leave its list for requests on the new one.
 	seq uint64
+	// warmed is closed when the background phrase warm-up has ended
+	// (finished, or stopped by a closing index); see warm.
+	warmed chan struct{}
 }
 
 // stateSeq hands out state sequence numbers.
@@ -184,6 +187,7 @@ func Open(ctx context.Context, dataDir string, p *text.Pipeline, opts Options) (
 		return nil, err
 	}
 	f.st.Store(s)
+	s.warm()
 	return f, nil
 }
 

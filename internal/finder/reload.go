@@ -39,6 +39,7 @@ func (f *Finder) Reload(ctx context.Context) error {
 		return err
 	}
 	f.st.Store(ns)
+	ns.warm()
 	f.cache.Flush()
 	return nil
 }

@@ -73,6 +73,38 @@ func (f *Finder) acquire() (*state, error) {
 
 func (s *state) release() { s.h.unref() }
 
+// warmChunk is how many phrases the background warm-up counts under one
+// index reference.
+const warmChunk = 256
+
+// warm counts, in the background, the documents of every phrase of the
+// state's table in the index (index.WarmPhrases), so that the first
+// suggestion lists offering a phrase do not pay for finding it: on the
+// 100,000-document synthetic corpus a cold phrase took about 70 µs, and
+// the first request for a query tens of them. Each chunk holds its own
+// index reference, so a swap or Close waits for one chunk at most; the
+// warm-up stops once the index is closing.
+func (s *state) warm() {
+	if s.tbl == nil {
+		close(s.warmed)
+		return
+	}
+	var keys []string
+	for _, p := range s.tbl.PhrasesFor(access.Viewer{Groups: s.h.ix.Groups()}) {
+		keys = append(keys, p.Key)
+	}
+	go func() {
+		defer close(s.warmed)
+		for i := 0; i < len(keys); i += warmChunk {
+			if !s.h.tryRef() {
+				return
+			}
+			s.h.ix.WarmPhrases(context.Background(), keys[i:min(i+warmChunk, len(keys))])
+			s.h.unref()
+		}
+	}()
+}
+
 // buildState reads the association table at table ("" or a missing file:
 // suggestions from feedback alone), builds the engine and warms the
 // index's postings. It publishes nothing.
@@ -96,7 +128,7 @@ func (f *Finder) buildState(ctx context.Context, h *handle, table, version strin
 	if err := ctx.Err(); err != nil {
 		return nil, fmt.Errorf("finder: reload: %w", err)
 	}
-	return &state{h: h, table: table, version: version, tbl: tbl, eng: eng, loaded: time.Now(), seq: stateSeq.Add(1)}, nil
+	return &state{h: h, table: table, version: version, tbl: tbl, eng: eng, loaded: time.Now(), seq: stateSeq.Add(1), warmed: make(chan struct{})}, nil
 }
 
 // Swap replaces the index and the association table the finder serves
@@ -132,6 +164,7 @@ func (f *Finder) Swap(ctx context.Context, dir, version string) (<-chan struct{}
 		return nil, fmt.Errorf("finder: swap: %w", index.ErrClosed)
 	}
 	f.st.Store(ns)
+	ns.warm()
 	f.cache.Flush()
 	old.release() // the published reference; requests still on it hold theirs
 	return old.h.done, nil

@@ -30,6 +30,7 @@ import (
 
 	"github.com/blevesearch/bleve/v2"
 
+	"kinword/internal/access"
 	"kinword/internal/text"
 )
 
@@ -182,3 +183,21 @@ func (ix *Index) Groups() []string {
 // Warm builds the current snapshot's postings now rather than on the first
 // search (a server calls it before reporting ready).
 func (ix *Index) Warm() { ix.snap.Load().postings() }
+
+// WarmPhrases computes and caches, on the current snapshot, the document
+// counts per access class of the given phrase keys (single words are
+// skipped: their counts are always at hand), so that the first searches
+// asking a phrase's document frequency do not pay for finding its
+// occurrences. It stops early when ctx is done.
+func (ix *Index) WarmPhrases(ctx context.Context, keys []string) {
+	w := ix.View(access.Viewer{Groups: ix.Groups()})
+	w.s.postings()
+	for i, k := range keys {
+		if i%64 == 63 && ctx.Err() != nil {
+			return
+		}
+		if parts := splitKey(k); len(parts) > 1 {
+			w.phraseClassDF(parts)
+		}
+	}
+}

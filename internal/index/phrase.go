@@ -22,6 +22,46 @@ type phraseCache struct {
 	mu   sync.Mutex
 	m    map[string]phraseList
 	size int
+	// df holds each phrase's document count per document class, kept
+	// apart from the postings (a few bytes per phrase) so that a viewer's
+	// phrase DF stays a sum over classes after the postings are dropped.
+	df map[string][]uint32
+}
+
+// phraseDFKeys bounds the phrases whose per-class counts are kept; past
+// it the counts start again empty.
+const phraseDFKeys = 1 << 18
+
+func (c *phraseCache) getDF(key string) ([]uint32, bool) {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	d, ok := c.df[key]
+	return d, ok
+}
+
+func (c *phraseCache) putDF(key string, d []uint32) {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if c.df == nil || len(c.df) >= phraseDFKeys {
+		c.df = make(map[string][]uint32)
+	}
+	c.df[key] = d
+}
+
+// phraseClassDF returns a phrase's document count per document class,
+// memoised per snapshot.
+func (w *View) phraseClassDF(parts []string) []uint32 {
+	key := strings.Join(parts, " ")
+	if d, ok := w.s.phrases.getDF(key); ok {
+		return d
+	}
+	docs, _ := w.phrasePostings(parts)
+	d := make([]uint32, len(w.s.classes))
+	for _, doc := range docs {
+		d[w.s.docClass[doc]]++
+	}
+	w.s.phrases.putDF(key, d)
+	return d
 }
 
 func (c *phraseCache) get(key string) (phraseList, bool) {

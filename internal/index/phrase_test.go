@@ -76,3 +76,55 @@ func TestPhrasePostingsMatchScan(t *testing.T) {
 		wg.Wait()
 	}
 }
+
+// TestKeyDFPerViewer checks KeyDF, whose phrase counts are kept per
+// document class, against the plain definition (readable documents holding
+// the word or the consecutive run) for viewers of different groups, before
+// and after the phrase postings are cached. Common practice: a property
+// test against a naive reference.
+func TestKeyDFPerViewer(t *testing.T) {
+	words := []string{"pipe", "main", "break", "valve", "street"}
+	groups := [][]string{nil, {"finance"}, {"legal"}, {"finance", "legal"}}
+	rng := rand.New(rand.NewPCG(9, 2))
+	var docs []doc.Document
+	for i := range 200 {
+		var b strings.Builder
+		for range 3 + rng.IntN(20) {
+			b.WriteString(words[rng.IntN(len(words))] + " ")
+		}
+		docs = append(docs, doc.Document{ID: fmt.Sprintf("d%03d", i), Title: "t", Body: b.String(), Groups: groups[rng.IntN(len(groups))]})
+	}
+	ix := openTest(t, docs)
+	p := ix.Pipeline()
+	viewers := []access.Viewer{access.Anonymous, {Groups: []string{"finance"}}, {Groups: []string{"legal", "finance"}}}
+	keys := []string{"", p.Key("pipe", ""), p.Key("main break", ""), p.Key("break main", ""), p.Key("pipe pipe", ""), p.Key("valve street main", ""), "unknownword", "unknownword pipe"}
+	for round := range 2 {
+		for _, v := range viewers {
+			w := ix.View(v)
+			for _, key := range keys {
+				parts := strings.Fields(key)
+				ids := make([]uint32, len(parts))
+				known := true
+				for i, s := range parts {
+					var ok bool
+					if ids[i], ok = w.TermID(s); !ok {
+						known = false
+					}
+				}
+				want := 0
+				for d := range uint32(w.NumDocs()) {
+					if !known || len(ids) == 0 || !w.CanRead(d) {
+						continue
+					}
+					toks, _ := w.Tokens(d)
+					if countRun(toks, ids) > 0 {
+						want++
+					}
+				}
+				if got := w.KeyDF(key); got != want {
+					t.Errorf("round %d, groups %v, %q: KeyDF %d, want %d", round, v.Groups, key, got, want)
+				}
+			}
+		}
+	}
+}

@@ -62,12 +62,22 @@ func (w *View) postings(key string) (docs, tfs []uint32) {
 
 // KeyDF returns the readable document frequency of a stem or phrase key.
 func (w *View) KeyDF(key string) int {
-	docs, _ := w.postings(key)
-	n := 0
-	for _, d := range docs {
-		if w.CanRead(d) {
-			n++
+	parts := splitKey(key)
+	switch len(parts) {
+	case 0:
+		return 0
+	case 1:
+		id, ok := w.s.termID[parts[0]]
+		if !ok {
+			return 0
 		}
+		return w.DF(id)
+	}
+	w.s.postings()
+	n := 0
+	d := w.phraseClassDF(parts)
+	for _, c := range w.sc.classes {
+		n += int(d[c])
 	}
 	return n
 }

@@ -25,8 +25,7 @@ func (r *run) queryPhraseCandidates() {
 
 // phrasesWith returns the first PhrasesPerTerm phrases with word w.
 func (r *run) phrasesWith(w string) []assoc.Phrase {
-	ps := r.e.tbl.PhrasesWith(r.req.Viewer, w)
-	return ps[:min(len(ps), r.e.opt.PhrasesPerTerm)]
+	return r.e.tbl.PhrasesWithTop(r.req.Viewer, w, r.e.opt.PhrasesPerTerm)
 }
 
 // addPhrase records p as a phrase candidate proposed through by.
