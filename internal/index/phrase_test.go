@@ -20,15 +20,7 @@ import (
 func TestPhrasePostingsMatchScan(t *testing.T) {
 	words := []string{"pipe", "main", "break", "valve", "street", "crew", "meter", "flush"}
 	rng := rand.New(rand.NewPCG(3, 5))
-	var docs []doc.Document
-	for i := range 300 {
-		var b strings.Builder
-		for range 5 + rng.IntN(40) {
-			b.WriteString(words[rng.IntN(len(words))] + " ")
-		}
-		docs = append(docs, doc.Document{ID: fmt.Sprintf("d%03d", i), Title: "t", Body: b.String()})
-	}
-	ix := openTest(t, docs)
+	ix := openTest(t, randomDocs(rng, words, 300, 5, 40, nil))
 	v := ix.View(access.Anonymous)
 	p := ix.Pipeline()
 	var phrases [][]string
@@ -86,15 +78,7 @@ func TestKeyDFPerViewer(t *testing.T) {
 	words := []string{"pipe", "main", "break", "valve", "street"}
 	groups := [][]string{nil, {"finance"}, {"legal"}, {"finance", "legal"}}
 	rng := rand.New(rand.NewPCG(9, 2))
-	var docs []doc.Document
-	for i := range 200 {
-		var b strings.Builder
-		for range 3 + rng.IntN(20) {
-			b.WriteString(words[rng.IntN(len(words))] + " ")
-		}
-		docs = append(docs, doc.Document{ID: fmt.Sprintf("d%03d", i), Title: "t", Body: b.String(), Groups: groups[rng.IntN(len(groups))]})
-	}
-	ix := openTest(t, docs)
+	ix := openTest(t, randomDocs(rng, words, 200, 3, 20, groups))
 	p := ix.Pipeline()
 	viewers := []access.Viewer{access.Anonymous, {Groups: []string{"finance"}}, {Groups: []string{"legal", "finance"}}}
 	keys := []string{"", p.Key("pipe", ""), p.Key("main break", ""), p.Key("break main", ""), p.Key("pipe pipe", ""), p.Key("valve street main", ""), "unknownword", "unknownword pipe"}
@@ -127,4 +111,22 @@ func TestKeyDFPerViewer(t *testing.T) {
 			}
 		}
 	}
+}
+
+// randomDocs makes n documents of min to min+spread-1 words drawn from
+// words, each readable by one of groups drawn at random (nil: all open).
+func randomDocs(rng *rand.Rand, words []string, n, min, spread int, groups [][]string) []doc.Document {
+	var docs []doc.Document
+	for i := range n {
+		var b strings.Builder
+		for range min + rng.IntN(spread) {
+			b.WriteString(words[rng.IntN(len(words))] + " ")
+		}
+		d := doc.Document{ID: fmt.Sprintf("d%03d", i), Title: "t", Body: b.String()}
+		if groups != nil {
+			d.Groups = groups[rng.IntN(len(groups))]
+		}
+		docs = append(docs, d)
+	}
+	return docs
 }

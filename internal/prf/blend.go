@@ -112,24 +112,7 @@ func (b *Blend) Expand(q []QueryTerm, docs []Doc, st Stats) Result {
 // pour returns s·a + (1−s)·c over the union of the two distributions'
 // terms, zero weights dropped, sorted by weight (ties: term ID).
 func pour(a, c []Weighted, s float64) []Weighted {
-	out := make([]Weighted, 0, len(a)+len(c))
-	for _, t := range a {
-		out = append(out, Weighted{t.ID, s * t.Weight})
-	}
-	for _, t := range c {
-		out = append(out, Weighted{t.ID, (1 - s) * t.Weight})
-	}
-	slices.SortFunc(out, func(x, y Weighted) int { return cmp.Compare(x.ID, y.ID) })
-	n := 0
-	for _, t := range out {
-		if n > 0 && out[n-1].ID == t.ID {
-			out[n-1].Weight += t.Weight
-			continue
-		}
-		out[n] = t
-		n++
-	}
-	out = slices.DeleteFunc(out[:n], func(t Weighted) bool { return t.Weight <= 0 })
-	sortByWeight(out)
-	return out
+	byID := slices.Clone(a)
+	slices.SortFunc(byID, func(x, y Weighted) int { return cmp.Compare(x.ID, y.ID) })
+	return interpolate(byID, c, s)
 }
