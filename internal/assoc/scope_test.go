@@ -219,3 +219,43 @@ func TestMergeTakesBestScope(t *testing.T) {
 		t.Errorf("merged neighbours by scope %v; want both scopes represented", from)
 	}
 }
+
+// TestNeighbourCacheKeepsViewersApart: Neighbours memoises its lists per
+// term, measure, k and visible scope set; the cached list of an insider
+// must never answer an outsider, a caller's changes must not reach the
+// cache, and a cached answer equals a fresh build.
+func TestNeighbourCacheKeepsViewersApart(t *testing.T) {
+	tb, err := Mine(context.Background(), scopedCorpus(true), Options{MinPhraseCount: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	insider := access.Viewer{Groups: []string{"hr"}}
+	id, ok := tb.LookupFor(insider, "salary")
+	if !ok {
+		t.Fatal("salary not in the table")
+	}
+	in := tb.Neighbours(insider, id, MeasureLLR, 10)
+	if !slices.ContainsFunc(in, func(n Neighbour) bool { return n.Scope == "hr" }) {
+		t.Fatalf("the insider's neighbours of salary draw on no hr document: %+v", in)
+	}
+	for round := range 2 {
+		out := tb.Neighbours(access.Anonymous, id, MeasureLLR, 10)
+		for _, n := range out {
+			if n.Scope != "" || n.Term == "zyxcanary" {
+				t.Errorf("round %d: an outsider got %+v", round, n)
+			}
+		}
+		again := tb.Neighbours(insider, id, MeasureLLR, 10)
+		if !reflect.DeepEqual(again, in) {
+			t.Errorf("round %d: the cached insider list differs from the first", round)
+		}
+		if fresh := tb.neighbours(tb.viewerScopes(insider), id, MeasureLLR, 10); !reflect.DeepEqual(again, fresh) {
+			t.Errorf("round %d: cached list differs from a fresh build", round)
+		}
+		again[0].Term = "changed by a caller"
+		in = tb.Neighbours(insider, id, MeasureLLR, 10)
+		if in[0].Term == "changed by a caller" {
+			t.Fatal("a caller's change reached the cache")
+		}
+	}
+}

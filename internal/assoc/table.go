@@ -41,6 +41,33 @@ type Table struct {
 	// (phraseCacheKey -> []Phrase), at most maxPhraseCache entries.
 	withCache sync.Map
 	withN     atomic.Int64
+
+	// nbCache holds Neighbours results per term, measure, k and visible
+	// scope set (neighbourCacheKey -> []Neighbour), at most
+	// maxNeighbourCache entries: a query's words recur across searches,
+	// and their neighbour lists never change for a loaded table.
+	nbCache sync.Map
+	nbN     atomic.Int64
+}
+
+// maxNeighbourCache bounds the Neighbours cache; past it lists are built
+// per call.
+const maxNeighbourCache = 1 << 15
+
+type neighbourCacheKey struct {
+	id      uint32
+	measure Measure
+	k       int
+	scopes  string
+}
+
+// scopeKey encodes a visible scope set as a cache key.
+func scopeKey(scopes []int) string {
+	kb := make([]byte, 0, 4*len(scopes))
+	for _, sc := range scopes {
+		kb = binary.LittleEndian.AppendUint32(kb, uint32(sc))
+	}
+	return string(kb)
 }
 
 // maxPhraseCache bounds the PhrasesWith cache; past it results are built
@@ -153,6 +180,22 @@ func (t *Table) Neighbours(v access.Viewer, id uint32, measure Measure, k int) [
 	if !t.visibleIn(scopes, id) {
 		return nil
 	}
+	key := neighbourCacheKey{id, measure, max(k, 0), scopeKey(scopes)}
+	if c, ok := t.nbCache.Load(key); ok {
+		return slices.Clone(c.([]Neighbour))
+	}
+	out := t.neighbours(scopes, id, measure, k)
+	if t.nbN.Load() < maxNeighbourCache {
+		if _, loaded := t.nbCache.LoadOrStore(key, out); !loaded {
+			t.nbN.Add(1)
+		}
+		return slices.Clone(out)
+	}
+	return out
+}
+
+// neighbours builds the Neighbours list of id over scopes.
+func (t *Table) neighbours(scopes []int, id uint32, measure Measure, k int) []Neighbour {
 	var out []Neighbour
 	at := map[uint32]int{}
 	for _, s := range scopes {
@@ -275,11 +318,7 @@ func (t *Table) phrasesWith(v access.Viewer, stem string) []Phrase {
 		return nil
 	}
 	scopes := t.viewerScopes(v)
-	kb := make([]byte, 0, 4*len(scopes))
-	for _, sc := range scopes {
-		kb = binary.LittleEndian.AppendUint32(kb, uint32(sc))
-	}
-	key := phraseCacheKey{stem, string(kb)}
+	key := phraseCacheKey{stem, scopeKey(scopes)}
 	if c, ok := t.withCache.Load(key); ok {
 		return c.([]Phrase)
 	}

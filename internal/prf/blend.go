@@ -91,7 +91,9 @@ func NewBlend(opt BlendOptions) (*Blend, error) {
 // is the blended distribution s·P_RM1 + (1−s)·P_θF (sums to 1), Result.Query
 // its interpolation with the original query, and Result.Iterations the
 // mixture model's EM iterations. Without usable feedback it behaves as RM3
-// does: Feedback is nil and Query is the original query's distribution.
+// does: Feedback is nil and Query is the original query's distribution;
+// when only the mixture model finds nothing (its θ_F all zero), the
+// relevance model stands alone.
 func (b *Blend) Expand(q []QueryTerm, docs []Doc, st Stats) Result {
 	qt, qsum := mergeQuery(q)
 	var qdist []Weighted
@@ -103,7 +105,14 @@ func (b *Blend) Expand(q []QueryTerm, docs []Doc, st Stats) Result {
 	if r.Feedback != nil {
 		m := b.mix.Expand(q, docs, st)
 		res.Iterations = m.Iterations
-		res.Feedback = pour(r.Feedback, m.Feedback, b.share)
+		switch {
+		case len(m.Feedback) == 0:
+			// The mixture model found nothing beyond the background
+			// (every θ_F weight zero): the relevance model alone.
+			res.Feedback = r.Feedback
+		default:
+			res.Feedback = pour(r.Feedback, m.Feedback, b.share)
+		}
 	}
 	res.Query = combine(qdist, res.Feedback, b.lambda)
 	return res
