@@ -68,7 +68,7 @@ func engineFor(tbl *assoc.Table, c feedbackConfig, p rank.BM25) (*suggest.Engine
 	}
 	if c.Model == "blend" {
 		return suggest.New(tbl, suggest.Options{AutoModel: "blend", AutoTerms: c.Terms,
-			Blend: prf.BlendOptions{FeedbackDocs: c.Docs, FeedbackTerms: max(c.Terms, 50), OrigWeight: c.Orig, Background: c.Alt, Mu: blendMu, Tolerance: 1e-6}})
+			Blend: prf.BlendOptions{FeedbackDocs: c.Docs, FeedbackTerms: max(c.Terms, 50), OrigWeight: c.Orig, Background: c.Alt, Mu: blendMu}})
 	}
 	return suggest.New(tbl, suggest.Options{Model: "rm3", AutoModel: "rm3", AutoTerms: c.Terms,
 		RM3: prf.RM3Options{FeedbackDocs: c.Docs, FeedbackTerms: max(c.Terms, 50), OrigWeight: c.Orig, Mu: c.Alt}})

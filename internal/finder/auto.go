@@ -12,11 +12,7 @@ import (
 // further). It returns the expanded query and the terms it added, or the
 // query unchanged and nil when nothing was added.
 func autoExpand(s *state, view *index.View, v access.Viewer, q []index.QueryTerm, first index.Result) ([]index.QueryTerm, []Expansion) {
-	fb := make([]suggest.Hit, len(first.Hits))
-	for i, h := range first.Hits {
-		fb[i] = suggest.Hit{Doc: h.Doc, Score: h.Score}
-	}
-	x := s.eng.AutoExpand(view, suggest.Request{Query: toSuggest(q), Viewer: v, Feedback: fb})
+	x := s.eng.AutoExpand(view, suggest.Request{Query: toSuggest(q), Viewer: v, Feedback: feedback(first.Hits, len(first.Hits))})
 	orig := make(map[string]bool, len(q))
 	for _, t := range q {
 		orig[t.Key] = true

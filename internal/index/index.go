@@ -191,7 +191,6 @@ func (ix *Index) Warm() { ix.snap.Load().postings() }
 // occurrences. It stops early when ctx is done.
 func (ix *Index) WarmPhrases(ctx context.Context, keys []string) {
 	w := ix.View(access.Viewer{Groups: ix.Groups()})
-	w.s.postings()
 	for i, k := range keys {
 		if i%64 == 63 && ctx.Err() != nil {
 			return

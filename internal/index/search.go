@@ -73,9 +73,8 @@ func (w *View) KeyDF(key string) int {
 		}
 		return w.DF(id)
 	}
-	w.s.postings()
 	n := 0
-	d := w.phraseClassDF(parts)
+	d := w.phraseClassDF(parts) // builds the postings on first use
 	for _, c := range w.sc.classes {
 		n += int(d[c])
 	}
