@@ -8,6 +8,6 @@ import "embed"
 // FS holds the embedded assets.
 //
 //go:embed index.html app.js widget.js brand.css openapi.json
-//go:embed librarian.html librarian.js librarian-io.js admin.html admin.js desk.js desk.css
+//go:embed librarian.html librarian.js librarian-io.js admin.html admin.js trials.js desk.js desk.css
 //go:embed vendor/uplot/uPlot.iife.min.js vendor/uplot/uPlot.min.css vendor/uplot/LICENSE vendor/uplot/README.md
 var FS embed.FS

@@ -102,5 +102,8 @@ func runDemo(ctx context.Context, e *env, args []string) error {
 		return nil
 	}
 	ix.Close()
+	if e.cfg.Review.JudgedDir == "" {
+		e.cfg.Review.JudgedDir = *corpus // the admin's trials run on the demo's own topics
+	}
 	return e.serve(ctx, *addr, true)
 }

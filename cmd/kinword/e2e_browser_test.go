@@ -62,7 +62,12 @@ func TestE2EBrowserBlockAndReview(t *testing.T) {
 	rec := parseSimRecorded(t, out)
 	t.Logf("simulated: %+v", rec)
 	cfg := filepath.Join(t.TempDir(), "kinword.toml")
-	if err := os.WriteFile(cfg, []byte("[server]\nrefresh_seconds = "+strconv.Itoa(e2eRefresh)+"\n"), 0o644); err != nil {
+	judged, err := filepath.Abs(e2eCorpus)
+	if err != nil {
+		t.Fatal(err)
+	}
+	conf := "[server]\nrefresh_seconds = " + strconv.Itoa(e2eRefresh) + "\n[review]\njudged_dir = " + strconv.Quote(judged) + "\n"
+	if err := os.WriteFile(cfg, []byte(conf), 0o644); err != nil {
 		t.Fatal(err)
 	}
 	base := e2eStartServer(t, data, cfg)
@@ -214,6 +219,53 @@ func TestE2EBrowserBlockAndReview(t *testing.T) {
 	}
 	b.clean(t, "/admin")
 	b.shot(t, "admin")
+
+	// 5. A trial on the same page: the demo's judged topics with the rules
+	// in force (the block) against a proposal adding the equivalence
+	// "burst pipe" -> "main break"; the page shows the three views and the
+	// stored trial, with the figures the API stored.
+	b.run(t, "draft a trial", chromedp.SendKeys(chromedp.CSS(`#t-title`), "burst pipe means main break"),
+		e2eSetValue("t-kind", "use"), chromedp.SendKeys(chromedp.CSS(`#t-query`), "burst pipe"),
+		chromedp.SendKeys(chromedp.CSS(`#t-term`), "main break"), chromedp.Click(chromedp.CSS(`#t-add`)),
+		chromedp.Poll[chromedp.Void](`document.querySelectorAll('#t-rules li').length === 1`))
+	b.run(t, "run the trial", chromedp.Click(chromedp.CSS(`#t-run`)),
+		chromedp.Poll[chromedp.Void](`document.getElementById('live').textContent.startsWith('Trial stored')`),
+		chromedp.Poll[chromedp.Void](`document.querySelectorAll('#trials tbody tr').length === 1 && document.querySelector('#trials tbody tr').cells.length === 4`))
+	code, body = request(t, "GET", base+"/api/v1/trials", "", "")
+	var list struct {
+		Trials []struct{ ID, Title string } `json:"trials"`
+	}
+	if err := json.Unmarshal([]byte(body), &list); code != 200 || err != nil || len(list.Trials) != 1 || list.Trials[0].Title != "burst pipe means main break" {
+		t.Fatalf("trials API: %d %s (%v)", code, body, err)
+	}
+	code, body = request(t, "GET", base+"/api/v1/trials/"+list.Trials[0].ID, "", "")
+	var stored struct {
+		Views []struct {
+			Name   string `json:"name"`
+			Report struct {
+				Runs []struct {
+					Method string  `json:"method"`
+					MAP    float64 `json:"map"`
+				} `json:"runs"`
+			} `json:"report"`
+		} `json:"views"`
+	}
+	if err := json.Unmarshal([]byte(body), &stored); code != 200 || err != nil || len(stored.Views) != 3 {
+		t.Fatalf("trial API: %d %s (%v)", code, body, err)
+	}
+	cells := e2eEval[[]string](t, b, `Array.from(document.querySelectorAll('#trial-views tbody tr')).map(tr => tr.cells[1].textContent + "|" + tr.cells[2].textContent)`)
+	var want []string
+	for _, v := range stored.Views {
+		want = append(want, fmt.Sprintf("%.4f|%.4f", v.Report.Runs[0].MAP, v.Report.Runs[1].MAP))
+	}
+	if !slices.Equal(cells, want) {
+		t.Errorf("trial table MAP cells %q, want the stored %q", cells, want)
+	}
+	if s := stored.Views[0].Report.Runs; s[1].MAP <= s[0].MAP {
+		t.Errorf("the equivalence should raise the plain search's MAP on the judged topics: %.4f -> %.4f", s[0].MAP, s[1].MAP)
+	}
+	b.clean(t, "/admin trial")
+	b.shot(t, "admin-trial")
 }
 
 // e2eLearnedOffers polls the API until persona's suggestions for e2eQuery

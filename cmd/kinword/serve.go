@@ -86,13 +86,17 @@ func (e *env) serveWith(ctx context.Context, addr string, demo bool, shared stri
 		return err
 	}
 	defer st.Close()
+	judged, err := loadJudged(e.cfg.Review.JudgedDir)
+	if err != nil {
+		return err
+	}
 	refresh := time.Duration(e.cfg.Server.RefreshSeconds) * time.Second
 	retention := time.Duration(e.cfg.Store.RetentionDays) * 24 * time.Hour
 	go learnLoop(ctx, e.log, st, f, &rulesRefresher{st: st, f: f, p: p}, refresh, retention)
 	go pruneLoop(ctx, e.log, st, retention)
 	opts := web.Options{Events: st, Addr: addr, Demo: demo, AllowedOrigins: e.cfg.Server.AllowedOrigins, Log: e.log, Tokens: tokens,
 		ShutdownGrace: time.Duration(e.cfg.Server.ShutdownGraceSeconds) * time.Second,
-		Rules:         curation{st: st}, Reviewer: curation{st: st}, Readers: f, Pipeline: p, RulesChanged: rulesNow(ctx, e.log, st, f, p),
+		Rules:         curation{st: st}, Reviewer: curation{st: st}, Trials: &trialKeeper{st: st, s: f, p: p, col: judged}, Readers: f, Pipeline: p, RulesChanged: rulesNow(ctx, e.log, st, f, p),
 		Identity: web.Identity{DepartmentHeader: e.cfg.Server.DepartmentHeader, GroupsHeader: e.cfg.Server.GroupsHeader,
 			SecretHeader: e.cfg.Server.SecretHeader, Secret: os.Getenv("KINWORD_PROXY_SECRET"), TrustLoopback: e.cfg.Server.TrustLoopback},
 		RateLimit: web.RateLimit{PerSecond: e.cfg.Server.RatePerSecond, Burst: e.cfg.Server.RateBurst}, MaxBodyBytes: e.cfg.Server.MaxBodyBytes, MaxQueryBytes: e.cfg.Search.MaxQueryBytes,

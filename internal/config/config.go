@@ -34,6 +34,16 @@ type Config struct {
 	Search   Search `toml:"search"`
 	Server   Server `toml:"server"`
 	Store    Store  `toml:"store"`
+	Review   Review `toml:"review"`
+}
+
+// Review configures the admin's review.
+type Review struct {
+	// JudgedDir is a judged set the organisation keeps (a folder with
+	// topics.tsv and qrels.txt, as kinword eval reads) that the admin's
+	// trials of proposed rule changes run against; default "" (trials are
+	// off; kinword demo uses the demo's own topics). Checked at start-up.
+	JudgedDir string `toml:"judged_dir"`
 }
 
 // Store configures the event store.

@@ -17,10 +17,9 @@ func (f *Finder) SetRules(set *curate.Set) {
 	f.cache.Flush()
 }
 
-// effect is what the published rules do to a query for a department now;
-// the zero Effect when there are no rules.
-func (f *Finder) effect(dept string, q []index.QueryTerm, now time.Time) curate.Effect {
-	set := f.rules.Load()
+// effect is what the rules set do to a query for a department now; the
+// zero Effect when there are no rules.
+func effect(set *curate.Set, dept string, q []index.QueryTerm, now time.Time) curate.Effect {
 	if set == nil {
 		return curate.Effect{}
 	}

@@ -59,6 +59,10 @@ type Response struct {
 	// Expanded are the terms the automatic mode added (Options.AutoExpand),
 	// heaviest first; empty otherwise.
 	Expanded []Expansion `json:"expanded,omitempty"`
+	// Ranking lists the IDs of the top Request.Ranking results the viewer
+	// may read, best first, without snippets (offline trials); nil unless
+	// asked for.
+	Ranking []string `json:"-"`
 }
 
 // Expansion is one term the automatic mode added to a query.
@@ -90,7 +94,21 @@ type Request struct {
 	// Useful are IDs of results the searcher marked useful: explicit
 	// relevance feedback. Only documents the viewer may read count.
 	Useful []string
+	// Rules, when non-nil, replaces the published librarian rules for this
+	// request (offline trials of a proposed change: an empty Set means no
+	// rules). Its suggestion lists are neither read from nor left in the
+	// cache.
+	Rules *curate.Set
+	// Ranking, when positive, asks for Response.Ranking: the IDs of the top
+	// Ranking results (at most MaxRanking), for offline evaluation.
+	Ranking int
+	// AutoExpand, when non-nil, overrides Options.AutoExpand for this
+	// request (offline trials of the setting).
+	AutoExpand *bool
 }
+
+// MaxRanking is the deepest Request.Ranking served.
+const MaxRanking = 1000
 
 // Search runs a query for a viewer: BM25 over readable documents, the
 // accepted terms added at the accepted-term weight, snippets, and
@@ -107,7 +125,11 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 		return Response{}, err
 	}
 	view := s.h.ix.View(req.Viewer)
-	eff := f.effect(req.Viewer.Department, q, time.Now())
+	rules := req.Rules
+	if rules == nil {
+		rules = f.rules.Load()
+	}
+	eff := effect(rules, req.Viewer.Department, q, time.Now())
 	accepted := cleanAccepted(req.Accepted)
 	full := withEquivalents(q, eff)
 	if len(accepted) > 0 {
@@ -132,14 +154,19 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 			full[i] = index.QueryTerm{Key: t.Key, Weight: t.Weight}
 		}
 	}
-	k := max(f.opts.Results, f.opts.FeedbackPool)
+	depth := min(max(req.Ranking, 0), MaxRanking)
+	k := max(f.opts.Results, f.opts.FeedbackPool, depth)
 	res, err := view.Search(ctx, full, f.opts.BM25, k)
 	if err != nil {
 		return Response{}, err
 	}
 	fbRes := res
 	var expanded []Expansion
-	if f.opts.AutoExpand && len(accepted) == 0 && len(marked) == 0 {
+	auto := f.opts.AutoExpand
+	if req.AutoExpand != nil {
+		auto = *req.AutoExpand
+	}
+	if auto && len(accepted) == 0 && len(marked) == 0 {
 		if full, expanded = autoExpand(s, view, req.Viewer, full, res); len(expanded) > 0 {
 			if res, err = view.Search(ctx, full, f.opts.BM25, k); err != nil {
 				return Response{}, err
@@ -160,7 +187,14 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 	if len(marked) > 0 {
 		salt = "useful:" + strings.Join(cleanAccepted(req.Useful), ",")
 	}
-	out.Suggestions = f.suggestions(s, view, req.Viewer, q, accepted, fbRes, out.Impression, salt, eff, len(marked))
+	cached := req.Rules == nil // a trial's rules must not reach live lists
+	out.Suggestions = f.suggestions(s, view, req.Viewer, q, accepted, fbRes, out.Impression, salt, eff, len(marked), cached)
+	if depth > 0 {
+		out.Ranking = make([]string, 0, min(depth, len(res.Hits)))
+		for _, h := range res.Hits[:min(depth, len(res.Hits))] {
+			out.Ranking = append(out.Ranking, h.ID)
+		}
+	}
 	if req.WithResults {
 		hits := res.Hits
 		if len(hits) > f.opts.Results {
@@ -175,9 +209,10 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 
 // suggestions offers terms from the viewer's own top results, cached per
 // viewer scope, query and accepted terms.
-func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []index.QueryTerm, accepted []string, res index.Result, impression, salt string, eff curate.Effect, marked int) []suggest.Suggestion {
+func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []index.QueryTerm, accepted []string, res index.Result, impression, salt string, eff curate.Effect, marked int, cached bool) []suggest.Suggestion {
+	cached = cached && !f.noCache
 	key := strconv.FormatUint(s.seq, 10) + "\x00" + v.Key() + "\x00" + canonical(q) + "\x00" + strings.Join(accepted, "|") + "\x00" + salt
-	if c, ok := f.cache.Get(key); ok && !f.noCache {
+	if c, ok := f.cache.Get(key); ok && cached {
 		return c.([]suggest.Suggestion)
 	}
 	sq := toSuggest(q)
@@ -223,7 +258,7 @@ func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []in
 	if sugs == nil {
 		sugs = []suggest.Suggestion{}
 	}
-	if !f.noCache {
+	if cached {
 		f.cache.SetDefault(key, sugs)
 	}
 	return sugs

@@ -31,6 +31,7 @@ func DefaultJSONRoutes() []string {
 		"PUT /api/v1/rules/:id",
 		"POST /api/v1/rules/preview",
 		"POST /api/v1/rules/audit/:seq/revert",
+		"POST /api/v1/trials",
 	}
 }
 

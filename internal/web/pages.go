@@ -8,7 +8,7 @@ import "github.com/gin-gonic/gin"
 // API route that checks the caller's role.
 var deskAssets = []string{
 	"librarian.html", "librarian.js", "librarian-io.js",
-	"admin.html", "admin.js",
+	"admin.html", "admin.js", "trials.js",
 	"desk.js", "desk.css",
 	"vendor/uplot/uPlot.iife.min.js", "vendor/uplot/uPlot.min.css",
 }

@@ -53,6 +53,9 @@ func (s *Server) routes() []Route {
 		{http.MethodPost, "/api/v1/rules/import", RoleLibrarian, "add or replace rules from a CSV, N-Triples or JSON-LD file, all or nothing", s.importRules},
 		{http.MethodGet, "/api/v1/review", RoleAdmin, "the review of suggestion quality for a window", s.reviewReport},
 		{http.MethodGet, "/api/v1/review/export", RoleAdmin, "one table of the review as CSV", s.reviewExport},
+		{http.MethodPost, "/api/v1/trials", RoleAdmin, "try a proposed rule or settings change on the judged set against the rules in force, and keep the report", s.runTrial},
+		{http.MethodGet, "/api/v1/trials", RoleAdmin, "the stored trial reports, newest first", s.listTrials},
+		{http.MethodGet, "/api/v1/trials/:id", RoleAdmin, "one stored trial report, as JSON or Markdown", s.getTrial},
 		{http.MethodGet, "/librarian", RolePublic, "the vocabulary desk page (its data calls are role-checked)", s.librarianPage},
 		{http.MethodGet, "/admin", RolePublic, "the suggestion review page (its data calls are role-checked)", s.adminPage},
 	}

@@ -53,6 +53,9 @@ type Options struct {
 	// Reviewer builds the admin review behind the /api/v1/review routes;
 	// nil means those routes answer 503.
 	Reviewer Reviewer
+	// Trials runs and keeps the admin's offline trials of proposed changes
+	// behind the /api/v1/trials routes; nil means those routes answer 503.
+	Trials TrialKeeper
 	// Departments are the department ids rules may name; empty accepts
 	// any.
 	Departments []string

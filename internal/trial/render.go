@@ -1,0 +1,65 @@
+package trial
+
+import (
+	"fmt"
+	"io"
+	"strings"
+	"time"
+)
+
+// viewTitles head each view's table.
+var viewTitles = map[string]string{
+	ViewSearch: "The query as typed",
+	ViewFirst:  "After accepting the first suggestion",
+	ViewBest:   "After accepting the best of the first suggestions",
+}
+
+// WriteMarkdown renders the report: what was tried, each view's table of
+// both sides with the comparison (helped, hurt, robustness index and the
+// randomization test's p-value on MAP), and the changed suggestions.
+func (r *Report) WriteMarkdown(w io.Writer) error {
+	var b strings.Builder
+	title := r.Proposal.Title
+	if title == "" {
+		title = "untitled"
+	}
+	fmt.Fprintf(&b, "# Trial: %s\n\n", md(title))
+	if r.ID != "" {
+		fmt.Fprintf(&b, "Report %s, run %s by %s.\n", r.ID, r.Created.UTC().Format(time.RFC3339), md(r.Actor))
+	}
+	fmt.Fprintf(&b, "Judged set %s: %d topics, %d of them changed by the proposal.\n", md(r.Collection), r.Topics, r.Changed)
+	fmt.Fprintf(&b, "Rules in force: %d; proposed: %d (%d added or replaced, %d removed).", r.RulesInForce, r.RulesProposed, len(r.Proposal.Add), len(r.Proposal.Remove))
+	if a := r.Proposal.AutoExpand; a != nil {
+		fmt.Fprintf(&b, " Automatic mode on the proposed side: %v.", *a)
+	}
+	b.WriteString("\n")
+	for _, v := range r.Views {
+		fmt.Fprintf(&b, "\n## %s\n\n", viewTitles[v.Name])
+		var t strings.Builder
+		if err := v.Report.WriteMarkdown(&t); err != nil {
+			return err
+		}
+		// The collection line is already above.
+		_, table, _ := strings.Cut(t.String(), "\n\n")
+		if table == "" {
+			table = t.String()
+		}
+		b.WriteString(table)
+	}
+	b.WriteString("\np: two-sided paired randomization test on per-topic average precision; helped/hurt: topics whose AP rose/fell.\n")
+	if len(r.Samples) > 0 {
+		b.WriteString("\n## Suggestions that changed\n\n| topic | query | before | after |\n|---|---|---|---|\n")
+		for _, s := range r.Samples {
+			fmt.Fprintf(&b, "| %s | %s | %s | %s |\n", md(s.QID), md(s.Query), md(strings.Join(s.Before, ", ")), md(strings.Join(s.After, ", ")))
+		}
+	}
+	if _, err := io.WriteString(w, b.String()); err != nil {
+		return fmt.Errorf("trial: write markdown: %w", err)
+	}
+	return nil
+}
+
+// md escapes table cells and line breaks.
+func md(s string) string {
+	return strings.NewReplacer("|", `\|`, "\n", " ", "\r", " ").Replace(s)
+}
