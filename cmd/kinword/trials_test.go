@@ -3,7 +3,9 @@ package main
 import (
 	"bytes"
 	"context"
+	"encoding/json"
 	"os"
+	"strings"
 	"path/filepath"
 	"testing"
 	"time"
@@ -88,6 +90,33 @@ func TestTrialOnDemoGolden(t *testing.T) {
 	}
 	if g.String() != string(want) {
 		t.Errorf("trial report differs from %s (run with -update after a deliberate change):\n%s", golden, g.String())
+	}
+	// Canaries: a proposal pinning and relating every canary term for
+	// every topic's words, run by a caller outside every group, never shows
+	// one in its report (rules offer a term only to viewers who may read a
+	// document holding it).
+	var canaryRules []curate.Rule
+	canaries := readTSV(t, filepath.Join("..", "..", "testdata", "tarnwick", "canaries.tsv"))
+	for _, row := range canaries {
+		for _, tp := range col.Topics[:10] {
+			w := strings.Fields(tp.Text)
+			q := strings.Join(w[max(0, len(w)-2):], " ") // the topic's last two words
+			canaryRules = append(canaryRules, curate.Rule{Kind: curate.Pin, Query: q, Term: row[0]},
+				curate.Rule{Kind: curate.Relate, Query: q, Term: row[0], Department: tp.Department})
+		}
+	}
+	leak, err := k.Run(ctx, trial.Proposal{Title: "canaries", Add: canaryRules}, nil, "ops")
+	if err != nil {
+		t.Fatal(err)
+	}
+	body, _ := json.Marshal(leak)
+	var md bytes.Buffer
+	_ = leak.WriteMarkdown(&md)
+	for _, row := range canaries {
+		if c := strings.ToLower(row[0]); strings.Contains(strings.ToLower(string(body)), c) && !strings.Contains(strings.ToLower(string(body)), `"term":"`+c) ||
+			strings.Contains(strings.ToLower(md.String()), c) {
+			t.Errorf("canary %s (group %s) reached an outsider's trial report", row[0], row[1])
+		}
 	}
 	// Without a judged set the keeper says so.
 	if _, err := (&trialKeeper{st: st, s: f, p: p}).Run(ctx, prop, nil, "ops"); err == nil {
