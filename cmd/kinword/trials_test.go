@@ -5,8 +5,8 @@ import (
 	"context"
 	"encoding/json"
 	"os"
-	"strings"
 	"path/filepath"
+	"strings"
 	"testing"
 	"time"
 
