@@ -79,16 +79,38 @@ func learnOnce(ctx context.Context, st *store.Store, f *finder.Finder, retention
 	return n, nil
 }
 
-// learnLoop refreshes learning every interval until ctx ends; a store
-// failure keeps the previous model serving.
-// The librarian's rules are refreshed on the same tick.
+// learnDuty bounds the share of one core the learning refresh may take:
+// a rebuild that took d waits at least d/learnDuty before the next, so a
+// store holding many events (a rebuild reads the whole retention window)
+// slows learning down instead of starving searches. With the default 30 s
+// interval the bound starts to bite once a rebuild takes 3 s.
+const learnDuty = 0.10
+
+// nextLearn is how long to wait after a rebuild that took took.
+func nextLearn(every, took time.Duration) time.Duration {
+	return max(every, time.Duration(float64(took)/learnDuty))
+}
+
+// learnLoop refreshes learning every interval (or less often, see
+// learnDuty) until ctx ends; a store failure keeps the previous model
+// serving. The librarian's rules are refreshed every interval.
 func learnLoop(ctx context.Context, log *slog.Logger, st *store.Store, f *finder.Finder, rules *rulesRefresher, every, retention time.Duration) {
 	t := time.NewTicker(every)
 	defer t.Stop()
 	snips := snippetCache{}
+	var due time.Time
 	for {
-		if _, err := learnOnce(ctx, st, f, retention, prefs.Options{}, &snips); err != nil && ctx.Err() == nil {
-			log.Error("learning refresh failed; the previous model keeps serving", "err", err)
+		if now := time.Now(); !now.Before(due) {
+			n, err := learnOnce(ctx, st, f, retention, prefs.Options{}, &snips)
+			took := time.Since(now)
+			if err != nil && ctx.Err() == nil {
+				log.Error("learning refresh failed; the previous model keeps serving", "err", err)
+			}
+			wait := nextLearn(every, took)
+			if wait > every {
+				log.Warn("learning refresh is slow; refreshing less often", "events", n, "took", took.Round(time.Millisecond), "next_in", wait.Round(time.Second))
+			}
+			due = now.Add(wait)
 		}
 		if rules != nil {
 			if err := rules.refresh(ctx); err != nil && ctx.Err() == nil {

@@ -4,11 +4,13 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
-	"kinword/internal/testenv"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
+
+	"kinword/internal/testenv"
 )
 
 func collections(t *testing.T) string { return testenv.Collections(t) }
@@ -134,5 +136,28 @@ func TestIngestSearchRoundTrip(t *testing.T) {
 	code, out, _ = runCLI(t, "ingest", "--data", data, src)
 	if code != 0 || !strings.Contains(out, "unchanged 2") {
 		t.Errorf("re-ingest not incremental: %s", out)
+	}
+}
+
+// TestNextLearn: the learning refresh waits its interval, or ten times as
+// long as the last rebuild took when that is longer (at most a tenth of
+// one core goes to rebuilding).
+func TestNextLearn(t *testing.T) {
+	tests := []struct {
+		name        string
+		every, took time.Duration
+		want        time.Duration
+	}{
+		{"fast rebuild keeps the interval", 30 * time.Second, 200 * time.Millisecond, 30 * time.Second},
+		{"at the bound", 30 * time.Second, 3 * time.Second, 30 * time.Second},
+		{"slow rebuild stretches the wait", 30 * time.Second, 10630 * time.Millisecond, 106300 * time.Millisecond},
+		{"zero took", time.Second, 0, time.Second},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			if got := nextLearn(tc.every, tc.took); got != tc.want {
+				t.Errorf("nextLearn(%v, %v) = %v, want %v", tc.every, tc.took, got, tc.want)
+			}
+		})
 	}
 }

@@ -57,6 +57,12 @@ func (s *Server) answer(c *gin.Context, req finder.Request) {
 		c.Header("Retry-After", "5")
 		apiError(c, http.StatusServiceUnavailable, "not_ready", "the index is not loaded yet")
 		return
+	case err != nil && c.Request.Context().Err() != nil:
+		// The caller went away (or its deadline passed): nothing failed here,
+		// and nobody reads the answer; 499 in the access log's manner.
+		s.opts.Log.Debug("lookup abandoned by the caller", "err", err)
+		c.AbortWithStatus(499)
+		return
 	case err != nil:
 		s.opts.Log.Error("lookup", "err", err)
 		apiError(c, http.StatusInternalServerError, "internal", "the search failed")

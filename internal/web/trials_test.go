@@ -59,7 +59,7 @@ func (k *fakeKeeper) Get(_ context.Context, id string) (*trial.Report, error) {
 	return nil, ErrTrialNotFound
 }
 
-func trialServer(t *testing.T, k TrialKeeper) (*Server, map[string]string) {
+func trialServer(t testing.TB, k TrialKeeper) (*Server, map[string]string) {
 	t.Helper()
 	adm, sum, err := NewToken()
 	if err != nil {
@@ -131,4 +131,37 @@ func TestTrialRoutesWithoutKeeperOrJudgedSet(t *testing.T) {
 	if rec := call(t, s, "POST", "/api/v1/trials", `{"title":"x","remove":["r1"]}`, adm); rec.Code != 503 || !strings.Contains(rec.Body.String(), "no_trials") {
 		t.Errorf("no judged set: %d %s, want 503 no_trials", rec.Code, rec.Body)
 	}
+}
+
+// FuzzTrialProposal: any body posted to /api/v1/trials answers 201 with a
+// report or a 4xx in the API's one error shape, never a 5xx (the fake's
+// "fail" title aside), and a stored trial is exactly what was posted.
+func FuzzTrialProposal(f *testing.F) {
+	for _, s := range []string{
+		`{"title":"burst pipe means main break","add":[{"kind":"use","query":"burst pipe","term":"main break"}]}`,
+		`{"title":"x","remove":["r1"],"auto_expand":true}`,
+		`{"title":"x"}`, `{"title":""}`, `{"title":"x","add":[{"kind":"pin"}]}`, `{"title":"x","remove":["r9"]}`,
+		`{"title":"x","add":{}}`, `[]`, `{"title":"x","auto_expand":"yes"}`, `{"title":"\u0000"}`, "{\"title\":\"\xff\"}",
+	} {
+		f.Add(s)
+	}
+	k := &fakeKeeper{}
+	s, adm := trialServer(f, k)
+	f.Fuzz(func(t *testing.T, body string) {
+		rec := call(t, s, "POST", "/api/v1/trials", body, adm)
+		code := checkErrorShape(t, rec)
+		switch {
+		case rec.Code == 201:
+			var r struct {
+				Proposal struct{ Title string } `json:"proposal"`
+			}
+			if err := json.Unmarshal(rec.Body.Bytes(), &r); err != nil || strings.TrimSpace(r.Proposal.Title) == "" {
+				t.Fatalf("201 without the proposal's title: %s (%v)", rec.Body, err)
+			}
+		case rec.Code >= 500 && !strings.Contains(body, `"fail"`):
+			t.Fatalf("%d %s for %q", rec.Code, code, body)
+		case rec.Code >= 300 && rec.Code < 500 && code == "":
+			t.Fatalf("%d without an error code", rec.Code)
+		}
+	})
 }
