@@ -201,6 +201,9 @@ type Search struct {
 	// AutoExpand expands every search without clicks (the automatic
 	// mode, from the searcher's own top results); default false.
 	AutoExpand bool `toml:"auto_expand"`
+	// Concurrent bounds the searches computed at once (the rest wait in
+	// arrival order); default 0 means twice the cores, -1 no bound.
+	Concurrent int `toml:"concurrent"`
 }
 
 // Default returns the embedded defaults.
@@ -280,6 +283,9 @@ func (c Config) Validate() error {
 	}
 	if c.Ingest.BatchSize < 1 || c.Ingest.BatchSize > 100000 {
 		bad("ingest.batch_size", "%d is outside 1..100000", c.Ingest.BatchSize)
+	}
+	if c.Search.Concurrent < -1 || c.Search.Concurrent > 4096 {
+		bad("search.concurrent", "%d is outside -1..4096 (0: twice the cores, -1: no bound)", c.Search.Concurrent)
 	}
 	if c.Search.Results < 1 || c.Search.Results > 1000 {
 		bad("search.results", "%d is outside 1..1000", c.Search.Results)

@@ -11,6 +11,7 @@ import (
 	"encoding/hex"
 	"errors"
 	"path/filepath"
+	"runtime"
 	"strings"
 	"sync"
 	"sync/atomic"
@@ -70,12 +71,22 @@ type Options struct {
 	// added; suggestions still come from the first pass. Default false
 	// (the searcher chooses). Costs a second search per query.
 	AutoExpand bool
+	// Concurrent bounds the searches computed at once; the others wait
+	// their turn in arrival order (or until their context ends). Searches
+	// are CPU-bound, so running more at once than there are cores only
+	// shares the cores out, and a heavy query then takes as long as all
+	// the others together: waiting in line keeps the tail short. Default
+	// twice GOMAXPROCS; negative: no bound.
+	Concurrent int
 	// Version labels the folder Open opens in Status (a replica's
 	// snapshot version, see Swap); default empty.
 	Version string
 }
 
 func (o Options) resolve() Options {
+	if o.Concurrent == 0 {
+		o.Concurrent = 2 * runtime.GOMAXPROCS(0)
+	}
 	if o.Results <= 0 {
 		o.Results = 10
 	}
@@ -137,6 +148,9 @@ type Finder struct {
 	noCache bool
 	cache   *gocache.Cache
 	wmu     sync.Mutex // serialises document pushes: each is written and committed whole
+	// slots holds a token per search being computed (Options.Concurrent);
+	// nil: no bound.
+	slots chan struct{}
 }
 
 // SetModel publishes a new learned model (nil switches learning off) and
@@ -175,6 +189,9 @@ func Open(ctx context.Context, dataDir string, p *text.Pipeline, opts Options) (
 		return nil, err
 	}
 	f := &Finder{p: p, opts: opts.resolve()}
+	if f.opts.Concurrent > 0 {
+		f.slots = make(chan struct{}, f.opts.Concurrent)
+	}
 	f.ix = liveIndex{f}
 	ttl := f.opts.CacheTTL
 	if ttl < 0 { // no reuse: the cache stays empty (benchmarks)

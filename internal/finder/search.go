@@ -115,6 +115,14 @@ const MaxRanking = 1000
 // suggestions from the viewer's own top results. Errors wrapping
 // index.ErrBadQuery are the caller's fault.
 func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
+	if f.slots != nil {
+		select {
+		case f.slots <- struct{}{}:
+			defer func() { <-f.slots }()
+		case <-ctx.Done():
+			return Response{}, ctx.Err()
+		}
+	}
 	s, err := f.acquire()
 	if err != nil {
 		return Response{}, err
