@@ -67,6 +67,7 @@
     }
     var links = text("p", "", "kw-exports");
     links.appendChild(K.exportLink("Markdown report", "/api/v1/trials/" + encodeURIComponent(r.id), { format: "markdown" }, "kinword-trial-" + r.id + ".md"));
+    links.appendChild(K.exportLink("CSV", "/api/v1/trials/" + encodeURIComponent(r.id), { format: "csv" }, "kinword-trial-" + r.id + ".csv"));
     box.appendChild(links);
   }
 

@@ -1,8 +1,10 @@
 package trial
 
 import (
+	"encoding/csv"
 	"fmt"
 	"io"
+	"strconv"
 	"strings"
 	"time"
 )
@@ -62,4 +64,36 @@ func (r *Report) WriteMarkdown(w io.Writer) error {
 // md escapes table cells and line breaks.
 func md(s string) string {
 	return strings.NewReplacer("|", `\|`, "\n", " ", "\r", " ").Replace(s)
+}
+
+// CSVHeader is the header line of WriteCSV.
+var CSVHeader = []string{"view", "method", "topics", "map", "p_at_10", "ndcg_at_10", "r_prec", "recall_at_100",
+	"baseline", "helped", "hurt", "robustness", "p_value"}
+
+// WriteCSV writes every view's runs as RFC 4180 CSV, one line per view and
+// side, with CSVHeader first; numbers in the shortest form that parses back
+// to the same value. The comparison columns are empty on the current side.
+func (r *Report) WriteCSV(w io.Writer) error {
+	cw := csv.NewWriter(w)
+	if err := cw.Write(CSVHeader); err != nil {
+		return fmt.Errorf("trial: write csv: %w", err)
+	}
+	num := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+	for _, v := range r.Views {
+		for _, run := range v.Report.Runs {
+			line := []string{v.Name, run.Method, strconv.Itoa(run.Topics), num(run.MAP), num(run.P10), num(run.NDCG10),
+				num(run.RPrec), num(run.Recall100), "", "", "", "", ""}
+			if c := run.Comparison; c != nil {
+				copy(line[8:], []string{c.Baseline, strconv.Itoa(c.Helped), strconv.Itoa(c.Hurt), num(c.Robustness), num(c.PValue)})
+			}
+			if err := cw.Write(line); err != nil {
+				return fmt.Errorf("trial: write csv: %w", err)
+			}
+		}
+	}
+	cw.Flush()
+	if err := cw.Error(); err != nil {
+		return fmt.Errorf("trial: write csv: %w", err)
+	}
+	return nil
 }

@@ -2,6 +2,7 @@ package trial
 
 import (
 	"context"
+	"encoding/csv"
 	"errors"
 	"strings"
 	"testing"
@@ -110,6 +111,32 @@ func TestRunHandComputed(t *testing.T) {
 		if !strings.Contains(b.String(), s) {
 			t.Errorf("markdown lacks %q:\n%s", s, b.String())
 		}
+	}
+}
+
+// TestWriteCSV: one header and one line per view and side, parsing back
+// with encoding/csv, the comparison only on the proposed side.
+func TestWriteCSV(t *testing.T) {
+	col := &eval.Collection{Name: "tiny", Topics: []eval.Topic{{ID: "q1", Text: "pipe"}}, Qrels: eval.Qrels{"q1": {"d1": 1}}}
+	f := &fake{plain: map[string][]string{"pipe": {"d2", "d1"}}, ruled: map[string][]string{"pipe": {"d1"}}}
+	cur, prop, _ := Sets(nil, Proposal{Add: []curate.Rule{{Kind: curate.Use, Query: "pipe", Term: "main"}}}, nil)
+	rep, err := Run(context.Background(), f, col, cur, prop, Proposal{}, Options{Trials: 100})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b strings.Builder
+	if err := rep.WriteCSV(&b); err != nil {
+		t.Fatal(err)
+	}
+	lines, err := csv.NewReader(strings.NewReader(b.String())).ReadAll()
+	if err != nil || len(lines) != 7 || strings.Join(lines[0], ",") != strings.Join(CSVHeader, ",") {
+		t.Fatalf("csv %q (%v): want the header and 6 lines", b.String(), err)
+	}
+	if l := lines[2]; l[0] != ViewSearch || l[1] != Proposed || l[3] != "1" || l[8] != Current || l[9] != "1" {
+		t.Errorf("proposed search line %q: want MAP 1, compared with current, 1 helped", l)
+	}
+	if l := lines[1]; l[3] != "0.5" || l[8] != "" {
+		t.Errorf("current search line %q: want MAP 0.5 and no comparison", l)
 	}
 }
 

@@ -98,15 +98,15 @@ func (s *Server) listTrials(c *gin.Context) {
 }
 
 // getTrial answers GET /api/v1/trials/:id, as JSON or, with
-// ?format=markdown, as the Markdown report.
+// ?format=markdown or csv, as the Markdown report or its tables as CSV.
 func (s *Server) getTrial(c *gin.Context) {
 	k := s.keeper(c)
 	if k == nil {
 		return
 	}
 	format := c.DefaultQuery("format", "json")
-	if format != "json" && format != "markdown" {
-		apiError(c, http.StatusBadRequest, "bad_format", "format is json or markdown")
+	if format != "json" && format != "markdown" && format != "csv" {
+		apiError(c, http.StatusBadRequest, "bad_format", "format is json, markdown or csv")
 		return
 	}
 	rep, err := k.Get(c.Request.Context(), c.Param("id"))
@@ -118,12 +118,16 @@ func (s *Server) getTrial(c *gin.Context) {
 		return
 	}
 	var b strings.Builder
-	if err := rep.WriteMarkdown(&b); err != nil {
+	write, ext, mime := rep.WriteMarkdown, "md", "text/markdown; charset=utf-8"
+	if format == "csv" {
+		write, ext, mime = rep.WriteCSV, "csv", "text/csv; charset=utf-8"
+	}
+	if err := write(&b); err != nil {
 		s.trialError(c, err)
 		return
 	}
-	c.Header("Content-Disposition", `attachment; filename="kinword-trial-`+rep.ID+`.md"`)
-	c.Data(http.StatusOK, "text/markdown; charset=utf-8", []byte(b.String()))
+	c.Header("Content-Disposition", `attachment; filename="kinword-trial-`+rep.ID+`.`+ext+`"`)
+	c.Data(http.StatusOK, mime, []byte(b.String()))
 }
 
 // trialError answers err (if any) and reports whether it did.

@@ -92,6 +92,7 @@ func TestTrialRoutes(t *testing.T) {
 		{"list", "GET", "/api/v1/trials", "", 200, ""},
 		{"get", "GET", "/api/v1/trials/t000000000001", "", 200, ""},
 		{"get markdown", "GET", "/api/v1/trials/t000000000001?format=markdown", "", 200, ""},
+		{"get csv", "GET", "/api/v1/trials/t000000000001?format=csv", "", 200, ""},
 		{"bad format", "GET", "/api/v1/trials/t000000000001?format=pdf", "", 400, "bad_format"},
 		{"unknown", "GET", "/api/v1/trials/tnope", "", 404, "not_found"},
 	}
