@@ -60,7 +60,7 @@ func (k *trialKeeper) Run(ctx context.Context, p trial.Proposal, groups []string
 		now = k.now
 	}
 	at := now().UTC()
-	rep, err := trial.Run(ctx, k.s, k.col, cur, prop, p, trial.Options{Groups: groups, Now: at})
+	rep, err := trial.Run(ctx, k.s, k.col, cur, prop, p, trial.Options{Groups: groups})
 	if err != nil {
 		return nil, err
 	}

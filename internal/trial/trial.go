@@ -78,8 +78,6 @@ type Options struct {
 	Trials int
 	// Seed seeds the randomization test; zero is a valid fixed seed.
 	Seed uint64
-	// Now is the instant rules are evaluated at; zero means time.Now().
-	Now time.Time
 }
 
 func (o Options) resolve() Options {
@@ -89,9 +87,6 @@ func (o Options) resolve() Options {
 	o.Depth = min(o.Depth, finder.MaxRanking)
 	if o.Tries <= 0 {
 		o.Tries = 5
-	}
-	if o.Now.IsZero() {
-		o.Now = time.Now()
 	}
 	return o
 }
