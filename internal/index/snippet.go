@@ -46,12 +46,14 @@ func MakeSnippet(p *text.Pipeline, body, lang string, q []QueryTerm, width int) 
 			want[part] = true
 		}
 	}
-	var all []text.Span
+	// all holds every token's byte range (compact: a snippet is built for
+	// each of a page's results, and only the window's ends are read).
+	all := make([][2]int32, 0, len(body)/6+1)
 	var hits []snipHit
-	text.Tokenize(body, func(sp text.Span, _ string) { all = append(all, sp) })
-	p.Analyze(body, lang, func(t text.Token) {
-		if want[t.Stem] {
-			hits = append(hits, snipHit{t.Start, t.End, t.Pos, t.Stem})
+	p.Scan(body, lang, func(sp text.Span, _, stem string) {
+		all = append(all, [2]int32{int32(sp.Start), int32(sp.End)})
+		if stem != "" && want[stem] {
+			hits = append(hits, snipHit{sp.Start, sp.End, sp.Pos, stem})
 		}
 	})
 	if len(all) == 0 {
@@ -72,7 +74,7 @@ func MakeSnippet(p *text.Pipeline, body, lang string, q []QueryTerm, width int) 
 		from = max(0, hits[best].pos-width/4)
 	}
 	to := min(len(all), from+width)
-	start, end := all[from].Start, all[to-1].End
+	start, end := int(all[from][0]), int(all[to-1][1])
 	var s Snippet
 	s.Text = strings.Join(strings.Fields(body[start:end]), " ")
 	if from > 0 {

@@ -62,6 +62,9 @@ func asciiLower(s string) string {
 
 // isWordRune reports whether r can be part of a word or number token.
 func isWordRune(r rune) bool {
+	if r < utf8.RuneSelf {
+		return 'a' <= r && r <= 'z' || 'A' <= r && r <= 'Z' || '0' <= r && r <= '9'
+	}
 	return unicode.IsLetter(r) || unicode.IsDigit(r) || unicode.Is(unicode.Mn, r) || unicode.Is(unicode.Mc, r)
 }
 

@@ -111,6 +111,22 @@ func (p *Pipeline) Analyze(s, lang string, fn func(Token)) {
 	})
 }
 
+// Scan is Analyze that also reports the tokens Analyze drops: fn is called
+// for every token in order with its span, folded form and stem, the stem
+// empty for stopwords and over-long tokens. Snippets use it to place a window
+// over all tokens and mark the matching ones in one pass over the text.
+func (p *Pipeline) Scan(s, lang string, fn func(sp Span, folded, stem string)) {
+	st := p.stemmer(lang)
+	stop := StopwordsFor(st.Language())
+	Tokenize(s, func(sp Span, folded string) {
+		if len(folded) > MaxTokenBytes || stop.Has(folded) {
+			fn(sp, folded, "")
+			return
+		}
+		fn(sp, folded, st.Stem(folded))
+	})
+}
+
 // Terms returns the stems of s in order, stopwords removed: the form a
 // query takes.
 func (p *Pipeline) Terms(s, lang string) []string {

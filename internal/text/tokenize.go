@@ -36,7 +36,7 @@ func Tokenize(s string, fn func(sp Span, folded string)) {
 	newlines := 0
 	i := 0
 	for i < len(s) {
-		r, w := utf8.DecodeRuneInString(s[i:])
+		r, w := decodeRune(s, i)
 		if !isWordRune(r) {
 			if r == '\n' {
 				newlines++
@@ -51,7 +51,7 @@ func Tokenize(s string, fn func(sp Span, folded string)) {
 		end := i + w
 		prevDigit := unicode.IsDigit(r)
 		for end < len(s) {
-			r2, w2 := utf8.DecodeRuneInString(s[end:])
+			r2, w2 := decodeRune(s, end)
 			if isWordRune(r2) {
 				prevDigit = unicode.IsDigit(r2)
 				end += w2
@@ -75,7 +75,7 @@ func Tokenize(s string, fn func(sp Span, folded string)) {
 
 func emit(s string, start, end int, pos *int, paraStart *bool, fn func(Span, string)) {
 	raw := s[start:end]
-	if !strings.ContainsAny(raw, "-\u2010\u2011") {
+	if !hasHyphen(raw) {
 		fn(Span{Start: start, End: end, Pos: *pos, ParaStart: *paraStart}, Fold(raw))
 		*pos++
 		*paraStart = false
@@ -124,6 +124,26 @@ func emit(s string, start, end int, pos *int, paraStart *bool, fn func(Span, str
 			rest = rest[j+w:]
 		}
 	}
+}
+
+// decodeRune is utf8.DecodeRuneInString(s[i:]) with a fast path for ASCII,
+// which most text is.
+func decodeRune(s string, i int) (rune, int) {
+	if c := s[i]; c < utf8.RuneSelf {
+		return rune(c), 1
+	}
+	return utf8.DecodeRuneInString(s[i:])
+}
+
+// hasHyphen reports whether raw holds a hyphen-minus or U+2010/U+2011 (both
+// encoded E2 80 9x), scanning bytes before falling back to the rune search.
+func hasHyphen(raw string) bool {
+	for i := 0; i < len(raw); i++ {
+		if c := raw[i]; c == '-' || c == 0xE2 {
+			return strings.ContainsAny(raw, "-\u2010\u2011")
+		}
+	}
+	return false
 }
 
 // Words returns the folded tokens of s, a convenience for tests and tools.

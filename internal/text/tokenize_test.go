@@ -1,9 +1,11 @@
 package text
 
 import (
+	"fmt"
 	"reflect"
 	"strings"
 	"testing"
+	"unicode"
 	"unicode/utf8"
 )
 
@@ -206,5 +208,42 @@ func TestStemmerConcurrentMemo(t *testing.T) {
 	}
 	for g := 0; g < 4; g++ {
 		<-done
+	}
+}
+
+// TestWordRuneASCIIFastPath: the ASCII shortcut in isWordRune agrees with
+// the Unicode definition (letters, digits, Mn, Mc) on every ASCII rune.
+func TestWordRuneASCIIFastPath(t *testing.T) {
+	for r := rune(0); r < utf8.RuneSelf; r++ {
+		want := unicode.IsLetter(r) || unicode.IsDigit(r) || unicode.Is(unicode.Mn, r) || unicode.Is(unicode.Mc, r)
+		if got := isWordRune(r); got != want {
+			t.Errorf("isWordRune(%q) = %v, want %v", r, got, want)
+		}
+	}
+}
+
+// TestScanMatchesAnalyze: Scan reports every token; those with a stem are
+// exactly Analyze's tokens (same spans, positions and stems), in order.
+func TestScanMatchesAnalyze(t *testing.T) {
+	p, _ := NewPipeline("")
+	for _, s := range []string{benchText, "", "the of", "E-mail x-ray ISO-9001 boundary\u2010layer o'clock 3.5 1,200 Straße", strings.Repeat("a", MaxTokenBytes+1) + " pipe"} {
+		var want, got []Token
+		p.Analyze(s, "", func(tk Token) { want = append(want, Token{Stem: tk.Stem, Start: tk.Start, End: tk.End, Pos: tk.Pos}) })
+		n := 0
+		p.Scan(s, "", func(sp Span, _, stem string) {
+			if sp.Pos != n {
+				t.Fatalf("%q: Scan position %d, want %d", s, sp.Pos, n)
+			}
+			n++
+			if stem != "" {
+				got = append(got, Token{Stem: stem, Start: sp.Start, End: sp.End, Pos: sp.Pos})
+			}
+		})
+		if len(Words(s)) != n {
+			t.Errorf("%q: Scan reported %d tokens, Tokenize %d", s, n, len(Words(s)))
+		}
+		if fmt.Sprint(got) != fmt.Sprint(want) {
+			t.Errorf("%q: Scan stems %v, Analyze %v", s, got, want)
+		}
 	}
 }
