@@ -200,3 +200,31 @@ func TestLoadRejectsCraftedDelta(t *testing.T) {
 		})
 	}
 }
+
+// TestNeighboursCacheMatchesReference: the cached, reference-based
+// Neighbours list equals the straightforward build (neighboursRef) for
+// every term, viewer, measure and cut, on the first call and on a cache hit.
+func TestNeighboursCacheMatchesReference(t *testing.T) {
+	tb, err := Mine(context.Background(), synthCorpus(groupedSpec()), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, v := range deltaViewers {
+		scopes := tb.viewerScopes(v)
+		for id := range uint32(tb.numTerms()) {
+			if !tb.Visible(v, id) {
+				continue
+			}
+			for _, m := range []Measure{MeasureLLR, MeasureNPMI, MeasureCondProb} {
+				for _, k := range []int{0, 3, 20} {
+					want := neighboursRef(tb, scopes, id, m, k)
+					for call := range 2 {
+						if got := tb.Neighbours(v, id, m, k); !reflect.DeepEqual(got, want) {
+							t.Fatalf("viewer %v term %q measure %v k %d call %d:\n got %+v\nwant %+v", v.Groups, tb.term(id), m, k, call, got, want)
+						}
+					}
+				}
+			}
+		}
+	}
+}

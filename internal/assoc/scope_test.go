@@ -1,6 +1,7 @@
 package assoc
 
 import (
+	"cmp"
 	"context"
 	"fmt"
 	"math/rand/v2"
@@ -249,7 +250,7 @@ func TestNeighbourCacheKeepsViewersApart(t *testing.T) {
 		if !reflect.DeepEqual(again, in) {
 			t.Errorf("round %d: the cached insider list differs from the first", round)
 		}
-		if fresh := tb.neighbours(tb.viewerScopes(insider), id, MeasureLLR, 10); !reflect.DeepEqual(again, fresh) {
+		if fresh := neighboursRef(tb, tb.viewerScopes(insider), id, MeasureLLR, 10); !reflect.DeepEqual(again, fresh) {
 			t.Errorf("round %d: cached list differs from a fresh build", round)
 		}
 		again[0].Term = "changed by a caller"
@@ -258,4 +259,41 @@ func TestNeighbourCacheKeepsViewersApart(t *testing.T) {
 			t.Fatal("a caller's change reached the cache")
 		}
 	}
+}
+
+// neighboursRef is the straightforward build of a Neighbours list (every
+// entry materialised, then sorted and cut), the reference the cached,
+// reference-based build must agree with.
+func neighboursRef(t *Table, scopes []int, id uint32, measure Measure, k int) []Neighbour {
+	var out []Neighbour
+	at := map[uint32]int{}
+	for _, s := range scopes {
+		st := t.scopes[s]
+		if st.df[id] == 0 {
+			continue
+		}
+		sp := st.entries(id)
+		for i := range sp.n {
+			src, e := sp.at(i)
+			nb := t.neighbour(st, src, id, e, measure)
+			if i, ok := at[nb.ID]; ok {
+				if nb.Score > out[i].Score {
+					out[i] = nb
+				}
+				continue
+			}
+			at[nb.ID] = len(out)
+			out = append(out, nb)
+		}
+	}
+	slices.SortFunc(out, func(a, b Neighbour) int {
+		if c := cmp.Compare(b.Score, a.Score); c != 0 {
+			return c
+		}
+		return strings.Compare(a.Term, b.Term)
+	})
+	if k > 0 && len(out) > k {
+		out = out[:k]
+	}
+	return out
 }

@@ -182,21 +182,56 @@ func (t *Table) Neighbours(v access.Viewer, id uint32, measure Measure, k int) [
 	}
 	key := neighbourCacheKey{id, measure, max(k, 0), scopeKey(scopes)}
 	if c, ok := t.nbCache.Load(key); ok {
-		return slices.Clone(c.([]Neighbour))
+		return t.materialise(id, measure, c.([]nbRef))
 	}
-	out := t.neighbours(scopes, id, measure, k)
+	refs := t.neighbourRefs(scopes, id, measure, k)
 	if t.nbN.Load() < maxNeighbourCache {
-		if _, loaded := t.nbCache.LoadOrStore(key, out); !loaded {
+		if _, loaded := t.nbCache.LoadOrStore(key, refs); !loaded {
 			t.nbN.Add(1)
 		}
-		return slices.Clone(out)
+	}
+	return t.materialise(id, measure, refs)
+}
+
+// nbRef locates one neighbour list entry: the viewer scope it is scored in
+// (an index into Table.scopes), whether its columns are that scope's base
+// (the open scope) rather than its own, and the entry's index in them. The
+// Neighbours cache holds these, pointer-free and a few bytes each, rather
+// than built Neighbour values: a busy server caches tens of thousands of
+// lists, and the collector need not scan them.
+type nbRef struct {
+	scope uint32
+	base  bool
+	entry uint32
+}
+
+// materialise builds the Neighbour values of refs.
+func (t *Table) materialise(id uint32, measure Measure, refs []nbRef) []Neighbour {
+	if len(refs) == 0 {
+		return nil
+	}
+	out := make([]Neighbour, len(refs))
+	for i, r := range refs {
+		st := t.scopes[r.scope]
+		src := st
+		if r.base {
+			src = st.base
+		}
+		out[i] = t.neighbour(st, src, id, r.entry, measure)
 	}
 	return out
 }
 
-// neighbours builds the Neighbours list of id over scopes.
-func (t *Table) neighbours(scopes []int, id uint32, measure Measure, k int) []Neighbour {
-	var out []Neighbour
+// neighbourRefs ranks id's neighbours over scopes, best first by measure
+// (ties by term), each from the scope where it scores highest; at most k
+// (k <= 0: all).
+func (t *Table) neighbourRefs(scopes []int, id uint32, measure Measure, k int) []nbRef {
+	type cand struct {
+		ref   nbRef
+		nb    uint32
+		score float64
+	}
+	var all []cand
 	at := map[uint32]int{}
 	for _, s := range scopes {
 		st := t.scopes[s]
@@ -206,27 +241,37 @@ func (t *Table) neighbours(scopes []int, id uint32, measure Measure, k int) []Ne
 		sp := st.entries(id)
 		for i := range sp.n {
 			src, e := sp.at(i)
-			nb := t.neighbour(st, src, id, e, measure)
-			if i, ok := at[nb.ID]; ok {
-				if nb.Score > out[i].Score {
-					out[i] = nb
+			c := cand{ref: nbRef{scope: uint32(s), base: src != st, entry: e}, nb: src.nb[e], score: t.score(st, src, id, e, measure)}
+			if j, ok := at[c.nb]; ok {
+				if c.score > all[j].score {
+					all[j] = c
 				}
 				continue
 			}
-			at[nb.ID] = len(out)
-			out = append(out, nb)
+			at[c.nb] = len(all)
+			all = append(all, c)
 		}
 	}
-	slices.SortFunc(out, func(a, b Neighbour) int {
-		if c := cmp.Compare(b.Score, a.Score); c != 0 {
+	slices.SortFunc(all, func(a, b cand) int {
+		if c := cmp.Compare(b.score, a.score); c != 0 {
 			return c
 		}
-		return strings.Compare(a.Term, b.Term)
+		return strings.Compare(t.term(a.nb), t.term(b.nb))
 	})
-	if k > 0 && len(out) > k {
-		out = out[:k]
+	if k > 0 && len(all) > k {
+		all = all[:k]
 	}
-	return out
+	refs := make([]nbRef, len(all))
+	for i, c := range all {
+		refs[i] = c.ref
+	}
+	return refs
+}
+
+// score is entry e's measure m alone, as neighbour computes it.
+func (t *Table) score(st, src *scopeTable, id, e uint32, m Measure) float64 {
+	k11, na, nbn, n := int64(src.k11[e]), int64(st.udf[id]), int64(st.udf[src.nb[e]]), int64(st.units)
+	return NewContingency(k11, na, nbn, n).Score(m)
 }
 
 // neighbour builds entry e of term id's list in scope st; src holds the
