@@ -204,6 +204,9 @@ type Search struct {
 	// Concurrent bounds the searches computed at once (the rest wait in
 	// arrival order); default 0 means twice the cores, -1 no bound.
 	Concurrent int `toml:"concurrent"`
+	// CacheEntries bounds the suggestion lists kept for reuse (each for
+	// one refresh interval); default 0 means 10,000, -1 no bound.
+	CacheEntries int `toml:"cache_entries"`
 }
 
 // Default returns the embedded defaults.
@@ -286,6 +289,9 @@ func (c Config) Validate() error {
 	}
 	if c.Search.Concurrent < -1 || c.Search.Concurrent > 4096 {
 		bad("search.concurrent", "%d is outside -1..4096 (0: twice the cores, -1: no bound)", c.Search.Concurrent)
+	}
+	if c.Search.CacheEntries < -1 || c.Search.CacheEntries > 10_000_000 {
+		bad("search.cache_entries", "%d is outside -1..10000000 (0: 10,000, -1: no bound)", c.Search.CacheEntries)
 	}
 	if c.Search.Results < 1 || c.Search.Results > 1000 {
 		bad("search.results", "%d is outside 1..1000", c.Search.Results)

@@ -30,6 +30,7 @@ func TestLoadReportsAllProblems(t *testing.T) {
 		{"unknown key", "colour = \"red\"\n", []string{"unknown keys: colour"}},
 		{"several bad values", "language = \"klingon\"\n[index]\nbm25_b = 2\nbm25_k1 = 0\n", []string{"language", "index.bm25_b", "index.bm25_k1"}},
 		{"bad toml", "[index\n", []string{"parse"}},
+		{"search bounds out of range", "[search]\nconcurrent = -2\ncache_entries = -5\n", []string{"search.concurrent", "search.cache_entries"}},
 		{"override ok", "[search]\nresults = 20\n", nil},
 	}
 	for _, c := range cases {

@@ -63,6 +63,12 @@ type Options struct {
 	// scope and query; default 30 s (the refresh interval); negative: never
 	// reused (every request computes its suggestions).
 	CacheTTL time.Duration
+	// CacheEntries bounds the suggestion lists kept for reuse: when that
+	// many are held, new lists are computed but not stored until expired
+	// ones are dropped, so a flood of distinct queries cannot grow the heap
+	// without limit. Default 10,000 (about 20 MB of lists with evidence);
+	// negative: no bound.
+	CacheEntries int
 	// AutoExpand turns on the automatic mode: a search with no accepted
 	// terms and no documents marked useful is expanded without clicks.
 	// The first pass's top results the viewer may read feed the engine's
@@ -108,6 +114,9 @@ func (o Options) resolve() Options {
 	}
 	if o.CacheTTL == 0 {
 		o.CacheTTL = 30 * time.Second
+	}
+	if o.CacheEntries == 0 {
+		o.CacheEntries = 10000
 	}
 	o.BM25 = o.BM25.Resolve()
 	return o
@@ -197,7 +206,7 @@ func Open(ctx context.Context, dataDir string, p *text.Pipeline, opts Options) (
 	if ttl < 0 { // no reuse: the cache stays empty (benchmarks)
 		f.noCache, ttl = true, time.Minute
 	}
-	f.cache = gocache.New(ttl, 2*ttl)
+	f.cache = gocache.New(ttl, ttl) // expired lists are swept every TTL
 	s, err := f.buildState(ctx, newHandle(ix), filepath.Join(dataDir, "assoc.kwa"), f.opts.Version)
 	if err != nil {
 		ix.Close()

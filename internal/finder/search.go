@@ -266,7 +266,7 @@ func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []in
 	if sugs == nil {
 		sugs = []suggest.Suggestion{}
 	}
-	if cached {
+	if cached && (f.opts.CacheEntries < 0 || f.cache.ItemCount() < f.opts.CacheEntries) {
 		f.cache.SetDefault(key, sugs)
 	}
 	return sugs
