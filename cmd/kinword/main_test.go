@@ -10,7 +10,9 @@ import (
 	"testing"
 	"time"
 
+	"kinword/internal/index"
 	"kinword/internal/testenv"
+	"kinword/internal/text"
 )
 
 func collections(t *testing.T) string { return testenv.Collections(t) }
@@ -159,5 +161,27 @@ func TestNextLearn(t *testing.T) {
 				t.Errorf("nextLearn(%v, %v) = %v, want %v", tc.every, tc.took, got, tc.want)
 			}
 		})
+	}
+}
+
+// TestHeldDataFolderRefused: ingest (or a second serve) on a data folder
+// another process holds fails within seconds with a message that says so,
+// rather than waiting on the index lock without a word.
+func TestHeldDataFolderRefused(t *testing.T) {
+	data := t.TempDir()
+	src := t.TempDir()
+	os.WriteFile(filepath.Join(src, "a.md"), []byte("# Valve exercising\n\nEvery valve is exercised yearly.\n"), 0o644)
+	if code, _, errs := runCLI(t, "ingest", "--data", data, src); code != 0 {
+		t.Fatalf("ingest exit %d: %s", code, errs)
+	}
+	p, _ := text.NewPipeline("")
+	held, err := index.Open(context.Background(), filepath.Join(data, "index"), index.Options{Pipeline: p})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer held.Close()
+	code, _, errs := runCLI(t, "ingest", "--data", data, src)
+	if code == 0 || !strings.Contains(errs, "in use by another kinword process") {
+		t.Errorf("ingest on a held folder: exit %d, stderr %q", code, errs)
 	}
 }

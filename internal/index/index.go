@@ -27,8 +27,10 @@ import (
 	"sort"
 	"sync"
 	"sync/atomic"
+	"time"
 
 	"github.com/blevesearch/bleve/v2"
+	bolt "go.etcd.io/bbolt"
 
 	"kinword/internal/access"
 	"kinword/internal/text"
@@ -36,6 +38,12 @@ import (
 
 // ErrClosed is returned by operations on a closed index.
 var ErrClosed = errors.New("index: closed")
+
+// ErrInUse is returned by Open when another process holds the index (a
+// running serve, ingest or mine on the same data folder): bleve's root
+// file is locked for one writer, and Open gives up after LockWait instead
+// of waiting without a word.
+var ErrInUse = errors.New("index: data folder in use by another kinword process")
 
 // Internal bleve keys that tie the forward store to the bleve index.
 var (
@@ -52,6 +60,9 @@ type Options struct {
 	// Workers is the number of goroutines analysing documents for the
 	// forward store; default GOMAXPROCS.
 	Workers int
+	// LockWait is how long Open waits for another process to release the
+	// index before it fails with ErrInUse; default 2 s.
+	LockWait time.Duration
 }
 
 // Index is an open index folder. It is safe for concurrent readers; writes
@@ -91,10 +102,17 @@ func Open(ctx context.Context, dir string, opts Options) (*Index, error) {
 	ix := &Index{dir: dir, opts: opts, p: opts.Pipeline}
 	bpath := filepath.Join(dir, "bleve")
 	var err error
+	wait := opts.LockWait
+	if wait <= 0 {
+		wait = 2 * time.Second
+	}
 	if _, statErr := os.Stat(bpath); statErr == nil {
-		ix.b, err = bleve.Open(bpath)
+		ix.b, err = bleve.OpenUsing(bpath, map[string]interface{}{"bolt_timeout": wait.String()})
 	} else {
 		ix.b, err = bleve.New(bpath, buildMapping())
+	}
+	if errors.Is(err, bolt.ErrTimeout) {
+		return nil, fmt.Errorf("%w: %s (stop the other process, or give this one another data folder)", ErrInUse, dir)
 	}
 	if err != nil {
 		return nil, fmt.Errorf("index: open bleve %s: %w", bpath, err)

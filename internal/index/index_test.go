@@ -2,12 +2,14 @@ package index
 
 import (
 	"context"
+	"errors"
 	"math"
 	"os"
 	"path/filepath"
 	"sort"
 	"strings"
 	"testing"
+	"time"
 
 	"kinword/internal/access"
 	"kinword/internal/doc"
@@ -262,4 +264,44 @@ func TestParseQueryErrors(t *testing.T) {
 			}
 		})
 	}
+}
+
+// TestOpenHeldFolderFailsFast: a second opener of a held index (another
+// serve or ingest on the same data folder) gets ErrInUse within LockWait
+// instead of waiting on the lock forever; once the holder closes, the
+// folder opens again.
+func TestOpenHeldFolderFailsFast(t *testing.T) {
+	p, _ := text.NewPipeline("")
+	dir := t.TempDir()
+	ctx := context.Background()
+	first, err := Open(ctx, dir, Options{Pipeline: p})
+	if err != nil {
+		t.Fatal(err)
+	}
+	first.Commit(ctx)
+	done := make(chan error, 1)
+	go func() {
+		ix, err := Open(ctx, dir, Options{Pipeline: p, LockWait: 100 * time.Millisecond})
+		if err == nil {
+			ix.Close()
+		}
+		done <- err
+	}()
+	select {
+	case err := <-done:
+		if !errors.Is(err, ErrInUse) {
+			t.Fatalf("second open: %v, want ErrInUse", err)
+		}
+		if !strings.Contains(err.Error(), dir) {
+			t.Errorf("error %q does not name the folder", err)
+		}
+	case <-time.After(time.Minute): // a hang, not a timing check
+		t.Fatal("second open still waiting after a minute")
+	}
+	first.Close()
+	again, err := Open(ctx, dir, Options{Pipeline: p, LockWait: 100 * time.Millisecond})
+	if err != nil {
+		t.Fatalf("open after release: %v", err)
+	}
+	again.Close()
 }
