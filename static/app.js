@@ -32,7 +32,11 @@
     if (state.persona) u.searchParams.set("persona", state.persona);
     return fetch(u, { headers: { "Accept": "application/json" } }).then(function (r) {
       return r.json().then(function (body) {
-        if (!r.ok) { throw new Error((body.error && body.error.message) || r.statusText); }
+        if (!r.ok) {
+          var e = new Error((body.error && body.error.message) || r.statusText);
+          e.code = body.error && body.error.code;
+          throw e;
+        }
         return body;
       });
     });
@@ -144,7 +148,12 @@
     api("/api/v1/lookup", { q: state.q, accepted: state.accepted.map(function (a) { return a.term; }).join("|"),
       useful: Object.keys(state.useful).join("|") })
       .then(render)
-      .catch(function (err) { el("status").textContent = "Search failed: " + err.message; });
+      .catch(function (err) {
+        // A query Kinword cannot search (only very common words, too long)
+        // is the searcher's to fix: say why, not that something broke.
+        var m = err.message || "";
+        el("status").textContent = err.code === "bad_query" ? m.charAt(0).toUpperCase() + m.slice(1) : "Search failed: " + m;
+      });
   }
 
   el("search").addEventListener("submit", function (e) {

@@ -57,7 +57,7 @@ func ParseQuery(p *text.Pipeline, s string, lim QueryLimits) ([]QueryTerm, error
 		}
 	}
 	if len(weights) == 0 {
-		return nil, fmt.Errorf("%w: no searchable words in %q", ErrBadQuery, s)
+		return nil, fmt.Errorf("%w: no searchable words in %q: every word is too common to search on (or has no letters or digits); add a more specific word", ErrBadQuery, s)
 	}
 	if len(weights) > lim.MaxTerms {
 		return nil, fmt.Errorf("%w: %d terms, the limit is %d", ErrBadQuery, len(weights), lim.MaxTerms)

@@ -73,6 +73,7 @@ func TestLimitLookupParameters(t *testing.T) {
 		{"accepted over 4096 bytes", "q=valve&accepted=" + strings.Repeat("a", 4097), 400, "parameter_too_long", "4097 bytes"},
 		{"missing q", "accepted=a", 400, "missing_query", ""},
 		{"blank q", "q=+++", 400, "missing_query", ""},
+		{"only stopwords", "q=the+of", 400, "bad_query", `no searchable words in "the of": every word is too common to search on`},
 	}
 	for _, path := range []string{"/api/v1/lookup", "/api/v1/hints"} {
 		for _, c := range cases {
@@ -80,6 +81,9 @@ func TestLimitLookupParameters(t *testing.T) {
 				rec := call(t, s, http.MethodGet, path+"?"+c.query, "", nil)
 				if rec.Code != c.status || apiCode(rec) != c.code || !strings.Contains(apiMessage(rec), c.msg) {
 					t.Fatalf("%d %s, want %d %s containing %q", rec.Code, rec.Body, c.status, c.code, c.msg)
+				}
+				if m := apiMessage(rec); strings.HasPrefix(m, "index:") || strings.HasPrefix(m, "finder:") {
+					t.Errorf("message %q carries an internal package prefix", m)
 				}
 			})
 		}

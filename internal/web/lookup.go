@@ -51,7 +51,8 @@ func (s *Server) answer(c *gin.Context, req finder.Request) {
 	resp, err := s.f.Search(c.Request.Context(), req)
 	switch {
 	case errors.Is(err, index.ErrBadQuery):
-		apiError(c, http.StatusBadRequest, "bad_query", err.Error())
+		// The searcher reads the reason, not the package it came from.
+		apiError(c, http.StatusBadRequest, "bad_query", strings.TrimPrefix(err.Error(), index.ErrBadQuery.Error()+": "))
 		return
 	case errors.Is(err, finder.ErrNotReady):
 		c.Header("Retry-After", "5")
