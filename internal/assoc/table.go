@@ -270,8 +270,13 @@ func (t *Table) neighbourRefs(scopes []int, id uint32, measure Measure, k int) [
 
 // score is entry e's measure m alone, as neighbour computes it.
 func (t *Table) score(st, src *scopeTable, id, e uint32, m Measure) float64 {
-	k11, na, nbn, n := int64(src.k11[e]), int64(st.udf[id]), int64(st.udf[src.nb[e]]), int64(st.units)
-	return NewContingency(k11, na, nbn, n).Score(m)
+	return contingency(st, src, id, e).Score(m)
+}
+
+// contingency is the 2x2 table of term id and entry e's neighbour in scope
+// st, the pair count taken from src (st or its base).
+func contingency(st, src *scopeTable, id, e uint32) Contingency {
+	return NewContingency(int64(src.k11[e]), int64(st.udf[id]), int64(st.udf[src.nb[e]]), int64(st.units))
 }
 
 // neighbour builds entry e of term id's list in scope st; src holds the
@@ -280,7 +285,7 @@ func (t *Table) score(st, src *scopeTable, id, e uint32, m Measure) float64 {
 func (t *Table) neighbour(st, src *scopeTable, id, e uint32, m Measure) Neighbour {
 	nb := src.nb[e]
 	k11, na, nbn, n := int64(src.k11[e]), int64(st.udf[id]), int64(st.udf[nb]), int64(st.units)
-	c := NewContingency(k11, na, nbn, n)
+	c := contingency(st, src, id, e)
 	return Neighbour{
 		ID: nb, Term: t.term(nb), Display: t.display(nb), Score: c.Score(m),
 		LLR: c.SignedG2(), PMI: c.PMI(), NPMI: c.NPMI(), Chi2: c.Chi2(), Dice: c.Dice(),

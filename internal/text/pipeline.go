@@ -95,26 +95,26 @@ func (p *Pipeline) lang(l string) string {
 func (p *Pipeline) Stem(folded, lang string) string { return p.stemmer(lang).Stem(folded) }
 
 // Analyze calls fn for every kept token of s in lang ("" = default).
+// A paragraph start on a dropped token passes to the next kept one.
 func (p *Pipeline) Analyze(s, lang string, fn func(Token)) {
-	st := p.stemmer(lang)
-	stop := StopwordsFor(st.Language())
 	pendingPara := false
-	Tokenize(s, func(sp Span, folded string) {
+	p.Scan(s, lang, func(sp Span, folded, stem string) {
 		if sp.ParaStart {
 			pendingPara = true
 		}
-		if len(folded) > MaxTokenBytes || stop.Has(folded) {
+		if stem == "" {
 			return
 		}
-		fn(Token{Surface: folded, Stem: st.Stem(folded), Start: sp.Start, End: sp.End, Pos: sp.Pos, ParaStart: pendingPara})
+		fn(Token{Surface: folded, Stem: stem, Start: sp.Start, End: sp.End, Pos: sp.Pos, ParaStart: pendingPara})
 		pendingPara = false
 	})
 }
 
-// Scan is Analyze that also reports the tokens Analyze drops: fn is called
-// for every token in order with its span, folded form and stem, the stem
-// empty for stopwords and over-long tokens. Snippets use it to place a window
-// over all tokens and mark the matching ones in one pass over the text.
+// Scan calls fn for every token of s in order with its span, folded form
+// and stem, the stem empty for the tokens the pipeline drops (stopwords and
+// over-long tokens): the one place that rule lives. Analyze keeps the
+// stemmed ones; snippets place a window over all tokens and mark the
+// matching ones in one pass over the text.
 func (p *Pipeline) Scan(s, lang string, fn func(sp Span, folded, stem string)) {
 	st := p.stemmer(lang)
 	stop := StopwordsFor(st.Language())

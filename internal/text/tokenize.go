@@ -135,15 +135,12 @@ func decodeRune(s string, i int) (rune, int) {
 	return utf8.DecodeRuneInString(s[i:])
 }
 
-// hasHyphen reports whether raw holds a hyphen-minus or U+2010/U+2011 (both
-// encoded E2 80 9x), scanning bytes before falling back to the rune search.
+// hasHyphen reports whether raw holds a hyphen-minus or U+2010/U+2011; both
+// of those encode with a leading E2 byte, so most words need only two byte
+// scans.
 func hasHyphen(raw string) bool {
-	for i := 0; i < len(raw); i++ {
-		if c := raw[i]; c == '-' || c == 0xE2 {
-			return strings.ContainsAny(raw, "-\u2010\u2011")
-		}
-	}
-	return false
+	return strings.IndexByte(raw, '-') >= 0 ||
+		strings.IndexByte(raw, 0xE2) >= 0 && strings.ContainsAny(raw, "\u2010\u2011")
 }
 
 // Words returns the folded tokens of s, a convenience for tests and tools.

@@ -212,7 +212,8 @@ func TestStemmerConcurrentMemo(t *testing.T) {
 }
 
 // TestWordRuneASCIIFastPath: the ASCII shortcut in isWordRune agrees with
-// the Unicode definition (letters, digits, Mn, Mc) on every ASCII rune.
+// the reference library (Go's unicode package tables) on the Unicode
+// definition of a word rune (letters, digits, Mn, Mc), every ASCII rune.
 func TestWordRuneASCIIFastPath(t *testing.T) {
 	for r := rune(0); r < utf8.RuneSelf; r++ {
 		want := unicode.IsLetter(r) || unicode.IsDigit(r) || unicode.Is(unicode.Mn, r) || unicode.Is(unicode.Mc, r)
