@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"kinword/internal/doc"
+	"kinword/internal/suggest"
 	"kinword/internal/text"
 )
 
@@ -40,7 +41,7 @@ func TestCacheEntriesBound(t *testing.T) {
 				if err != nil {
 					t.Fatal(err)
 				}
-				first[q] = terms(r)
+				first[q] = suggest.Keys(r.Suggestions)
 			}
 			if len(first["kakakan"]) == 0 {
 				t.Fatal("no suggestions for kakakan; the test is weak")
@@ -53,7 +54,7 @@ func TestCacheEntriesBound(t *testing.T) {
 				if err != nil {
 					t.Fatal(err)
 				}
-				if got := terms(r); !reflect.DeepEqual(got, first[q]) {
+				if got := suggest.Keys(r.Suggestions); !reflect.DeepEqual(got, first[q]) {
 					t.Errorf("%q: second answer %v, first %v", q, got, first[q])
 				}
 			}
@@ -82,14 +83,6 @@ func cacheDocs() []doc.Document {
 			b.WriteString(word(topic, r.IntN(25)) + " ")
 		}
 		out = append(out, doc.Document{ID: fmt.Sprintf("d%02d", i), Title: word(topic, i%25), Body: b.String()})
-	}
-	return out
-}
-
-func terms(r Response) []string {
-	var out []string
-	for _, s := range r.Suggestions {
-		out = append(out, s.Term)
 	}
 	return out
 }
