@@ -120,7 +120,7 @@ func (f *Finder) buildState(ctx context.Context, h *handle, table, version strin
 			tbl = t
 		}
 	}
-	eng, err := suggest.New(tbl, suggest.Options{K: f.opts.Suggestions})
+	eng, err := suggest.New(tbl, suggest.Options{K: f.opts.Suggestions, BM25: f.opts.BM25})
 	if err != nil {
 		return nil, fmt.Errorf("finder: reload: %w", err)
 	}

@@ -57,20 +57,21 @@ func ExampleRM3() {
 	//   report    0.141
 }
 
-// ExampleBlend averages, over the same two documents as ExampleRM3, the
+// ExampleBlend pools, over the same two documents as ExampleRM3, the
 // relevance model (reservoir 0.427, level 0.291, report 0.282 with μ 4
 // and 3 terms) and the mixture model's θ_F (background weight 0.5). By
 // hand (checked with a plain Python EM run to convergence): the pooled
 // counts reservoir 3, level 2, intake 2, report 2 against the background
 // 3/12, 2/12, 2/12, 3/12 give θ_F = 13/36, 13/54, 13/54, 17/108, whose
-// top 3 renormalise to 3/7, 2/7, 2/7; the averages are below.
+// top 3 renormalise to 3/7, 2/7, 2/7; the averages are below. Rocchio's
+// third share is switched off here (TestBlendThreeModels checks it).
 func ExampleBlend() {
 	const reservoir = 0
 	docs := []prf.Doc{
 		{Terms: []prf.TermFreq{{0, 2}, {1, 2}, {4, 1}}, Len: 5, Score: 2.1},
 		{Terms: []prf.TermFreq{{0, 1}, {2, 2}, {4, 1}}, Len: 4, Score: 1.4},
 	}
-	m, err := prf.NewBlend(prf.BlendOptions{Mu: 4, FeedbackTerms: 3})
+	m, err := prf.NewBlend(prf.BlendOptions{Mu: 4, FeedbackTerms: 3, RocchioShare: -1})
 	if err != nil {
 		panic(err)
 	}

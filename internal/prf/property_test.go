@@ -48,7 +48,7 @@ func TestProperties(t *testing.T) {
 				checkSorted(t, "query", res.Query)
 				limit := DefaultFeedbackTerms
 				if md.name == "blend" {
-					limit *= 2 // each part keeps FeedbackTerms
+					limit *= 3 // each of the three parts keeps FeedbackTerms
 				}
 				if len(res.Feedback) == 0 || len(res.Feedback) > limit {
 					t.Errorf("seed %d: %d feedback terms", seed, len(res.Feedback))
@@ -144,6 +144,8 @@ func TestBadOptions(t *testing.T) {
 		{"rocchio negative FeedbackTerms", second(NewRocchio(RocchioOptions{FeedbackTerms: -1}))},
 		{"rm3 unknown DocWeights", second(NewRM3(RM3Options{DocWeights: "scores"}))},
 		{"blend RM3Share above 1", second(NewBlend(BlendOptions{RM3Share: 1.5}))},
+		{"blend RocchioShare above 1", second(NewBlend(BlendOptions{RocchioShare: 1.5}))},
+		{"blend RocchioShare NaN", second(NewBlend(BlendOptions{RocchioShare: math.NaN()}))},
 		{"blend OrigWeight NaN", second(NewBlend(BlendOptions{OrigWeight: math.NaN()}))},
 		{"blend Background 1", second(NewBlend(BlendOptions{Background: 1}))},
 		{"blend negative Mu", second(NewBlend(BlendOptions{Mu: -5}))},

@@ -2,7 +2,7 @@
 // query and the documents a first retrieval pass ranked highest, each model
 // returns weighted terms: a feedback model, whose strongest terms are shown
 // as related-term suggestions, and an expanded query for automatic
-// expansion. Three models are provided, and a blend of two of them:
+// expansion. Three models are provided, and a blend of the three:
 //
 //   - RM3: the relevance model RM1 of Lavrenko & Croft (SIGIR 2001)
 //     interpolated with the original query as in Abdul-Jaleel et al.
@@ -12,8 +12,9 @@
 //     background;
 //   - Rocchio: the vector-space feedback of Rocchio (1971) over BM25 term
 //     weights (or raw term frequencies);
-//   - Blend: the average of RM1 and the mixture model's θ_F over the same
-//     feedback documents, interpolated with the query as RM3 does.
+//   - Blend: a weighted average of RM1, the mixture model's θ_F and
+//     Rocchio's normalised feedback vector over the same feedback
+//     documents, interpolated with the query as RM3 does.
 //
 // All of them have the method Expand(q []QueryTerm, docs []Doc, st Stats)
 // Result, so a caller may declare one interface over them.

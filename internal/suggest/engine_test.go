@@ -10,6 +10,7 @@ import (
 
 	"kinword/internal/access"
 	"kinword/internal/prf"
+	"kinword/internal/rank"
 )
 
 var insider = access.Viewer{Department: "field-operations", Groups: []string{"ops-security"}}
@@ -189,6 +190,32 @@ func TestNewRejectsBadOptions(t *testing.T) {
 }
 
 func nan() float64 { z := 0.0; return z / z }
+
+// TestOptionsBM25: the search's BM25 parameters reach Rocchio's document
+// weights, in the rocchio model and the blend, unless those set their own.
+func TestOptionsBM25(t *testing.T) {
+	search, own := rank.BM25{K1: 0.9, B: 0.4}, rank.BM25{K1: 2, B: 0.5}
+	cases := []struct {
+		name                string
+		opt                 Options
+		wantRocchio, wantBl rank.BM25
+	}{
+		{"search's parameters", Options{BM25: search}, search, search},
+		{"own parameters kept", Options{BM25: search, Rocchio: prf.RocchioOptions{BM25: own}, Blend: prf.BlendOptions{BM25: own}}, own, own},
+		{"none: zero (k1 1.2, b 0.75 in prf)", Options{}, rank.BM25{}, rank.BM25{}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			e, err := New(nil, c.opt)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if got := e.Options(); got.Rocchio.BM25 != c.wantRocchio || got.Blend.BM25 != c.wantBl {
+				t.Errorf("Rocchio %+v, Blend %+v; want %+v, %+v", got.Rocchio.BM25, got.Blend.BM25, c.wantRocchio, c.wantBl)
+			}
+		})
+	}
+}
 
 // TestEmptyRequest: no query, or no usable weight, gives no suggestions.
 func TestEmptyRequest(t *testing.T) {

@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"kinword/internal/prf"
+	"kinword/internal/rank"
 )
 
 // Defaults used when an Options field is zero.
@@ -48,15 +49,17 @@ const (
 type Options struct {
 	// Model is the feedback model behind suggestions: "rm3" (RM3's
 	// relevance model RM1, the default), "mixture" (Zhai & Lafferty's
-	// θ_F), "blend" (the average of the two, prf.Blend) or "rocchio".
+	// θ_F), "blend" (the three models pooled, prf.Blend) or "rocchio".
 	Model string
 	// AutoModel is the feedback model of the automatic mode (AutoExpand),
-	// one of the same names. Default "blend": against RM3 alone, with
-	// 2-fold cross-validated parameters (median over three splits), it
-	// raised automatic-expansion MAP on CISI from 0.2404 to 0.2507 and
-	// moved Cranfield's from 0.3604 to 0.3579. As the suggestion model it
-	// lowered CISI's good share of the top five from 0.34 to 0.32 (one
-	// added term at the accepted weight), so suggestions stay on RM3.
+	// one of the same names. Default "blend" (RM1, θ_F and Rocchio's
+	// vector pooled in equal shares): against RM3 alone, with 2-fold
+	// cross-validated parameters (median over three splits), it raised
+	// automatic-expansion MAP on Cranfield from 0.3604 to 0.3616 and on
+	// CISI from 0.2404 to 0.2523. As the suggestion model it lowered the
+	// good share of the top five from 0.36 to 0.35 (Cranfield) and 0.34 to
+	// 0.32 (CISI; one added term at the accepted weight), as Rocchio alone
+	// did, so suggestions stay on RM3.
 	AutoModel string
 	// RM3, Mixture, Blend and Rocchio configure the models (see internal/prf).
 	// Their FeedbackDocs default to prf's 10; their FeedbackTerms default
@@ -151,6 +154,10 @@ type Options struct {
 	// AutoTerms is the number of expansion terms AutoExpand adds.
 	// Default 10.
 	AutoTerms int
+	// BM25 holds the BM25 parameters of the search (k1, b) for Rocchio's
+	// document term weights, in the rocchio model and in the blend, where
+	// their own BM25 fields are zero. Zero: k1 1.2, b 0.75.
+	BM25 rank.BM25
 	// Language selects the stopword list (a Snowball language name; ""
 	// means English).
 	Language string
@@ -249,6 +256,12 @@ func (o Options) resolve() (Options, error) {
 	}
 	if o.Rocchio.FeedbackTerms == 0 {
 		o.Rocchio.FeedbackTerms = DefaultFeedbackTerms
+	}
+	if o.Rocchio.BM25 == (rank.BM25{}) {
+		o.Rocchio.BM25 = o.BM25
+	}
+	if o.Blend.BM25 == (rank.BM25{}) {
+		o.Blend.BM25 = o.BM25
 	}
 	return o, nil
 }
