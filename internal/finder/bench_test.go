@@ -30,7 +30,9 @@ import (
 // suggestions is the finder's suggestion path without results;
 // suggest-engine is the suggestion engine alone over first-pass results
 // computed beforehand; search-with-suggestions and expanded-5 are whole
-// page requests (results with snippets and suggestions).
+// page requests (results with snippets and suggestions); paired times
+// search and suggestions alternately on each query and reports their
+// ratios, the figure to quote on a noisy machine.
 //
 //	KINWORD_BENCH_DATA=/tmp/k100k go test ./internal/finder -run XXX -bench Latency -benchtime 2000x
 func BenchmarkLatency(b *testing.B) {
@@ -74,6 +76,47 @@ func BenchmarkLatency(b *testing.B) {
 				b.Fatal(err)
 			}
 		})
+	})
+	// search-top-50 is search ranking the feedback pool's 50 rather than
+	// 10: what every suggestion request paid before the pool was kept for
+	// learning.
+	b.Run("search-top-50", func(b *testing.B) {
+		measure(b, func(i int) {
+			if _, err := view.Search(ctx, parsed[i], f.opts.BM25, 50); err != nil {
+				b.Fatal(err)
+			}
+		})
+	})
+	// paired times plain search and the suggestion path on each query in
+	// turn, so both meet the same moments of a noisy machine; it reports
+	// each one's median and p99 and the ratios suggestions/search.
+	b.Run("paired", func(b *testing.B) {
+		plain := make([]time.Duration, 0, b.N)
+		sugg := make([]time.Duration, 0, b.N)
+		b.ResetTimer()
+		for n := range b.N {
+			i := n % len(queries)
+			t0 := time.Now()
+			if _, err := view.Search(ctx, parsed[i], f.opts.BM25, 10); err != nil {
+				b.Fatal(err)
+			}
+			t1 := time.Now()
+			if _, err := f.Search(ctx, Request{Query: queries[i], Viewer: v}); err != nil {
+				b.Fatal(err)
+			}
+			plain, sugg = append(plain, t1.Sub(t0)), append(sugg, time.Since(t1))
+		}
+		b.StopTimer()
+		slices.Sort(plain)
+		slices.Sort(sugg)
+		ms := func(d time.Duration) float64 { return float64(d.Microseconds()) / 1000 }
+		p50, p99 := len(plain)/2, len(plain)*99/100
+		b.ReportMetric(ms(plain[p50]), "search-p50-ms")
+		b.ReportMetric(ms(plain[p99]), "search-p99-ms")
+		b.ReportMetric(ms(sugg[p50]), "sugg-p50-ms")
+		b.ReportMetric(ms(sugg[p99]), "sugg-p99-ms")
+		b.ReportMetric(float64(sugg[p50])/float64(plain[p50]), "p50-ratio")
+		b.ReportMetric(float64(sugg[p99])/float64(plain[p99]), "p99-ratio")
 	})
 	b.Run("suggestions", func(b *testing.B) {
 		measure(b, func(i int) {
