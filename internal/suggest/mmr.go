@@ -40,8 +40,7 @@ func (r *run) docSet(cd *cand) int {
 	for i, d := range r.docs {
 		in := true
 		for _, id := range ids {
-			_, ok := slices.BinarySearchFunc(d.terms, id, func(t prf.TermFreq, id uint32) int { return cmp.Compare(t.Term, id) })
-			in = in && ok
+			in = in && hasTerm(d.terms, id)
 		}
 		if in && len(ids) > 1 {
 			in = hasRun(d.toks, ids)
@@ -52,6 +51,21 @@ func (r *run) docSet(cd *cand) int {
 		}
 	}
 	return cd.ndocs
+}
+
+// hasTerm reports whether terms (sorted by term) holds id: a plain binary
+// search, the engine's most frequent lookup.
+func hasTerm(terms []prf.TermFreq, id uint32) bool {
+	lo, hi := 0, len(terms)
+	for lo < hi {
+		m := int(uint(lo+hi) >> 1)
+		if terms[m].Term < id {
+			lo = m + 1
+		} else {
+			hi = m
+		}
+	}
+	return lo < len(terms) && terms[lo].Term == id
 }
 
 // hasRun reports whether ids occur as consecutive tokens of toks.
