@@ -72,7 +72,7 @@ const (
 // combining estimates). On the judged collections, with 2-fold
 // cross-validated parameters, pooling RM1 and θ_F was steadier across folds
 // than either alone, and adding Rocchio's third raised the robustness
-// index (see the eval reports and DEVELOPERS.md).
+// index (see the eval reports).
 type Blend struct {
 	rm3    *RM3
 	mix    *Mixture
