@@ -63,12 +63,12 @@ func mineIndex(ctx context.Context, ix *index.Index, tmp string) (*assoc.Table, 
 // engineFor builds an engine for one grid configuration (RM3 or Rocchio).
 func engineFor(tbl *assoc.Table, c feedbackConfig, p rank.BM25) (*suggest.Engine, error) {
 	if c.Model == "rocchio" {
-		return suggest.New(tbl, suggest.Options{Model: "rocchio", AutoModel: "rocchio", AutoTerms: c.Terms,
-			Rocchio: prf.RocchioOptions{FeedbackDocs: c.Docs, FeedbackTerms: max(c.Terms, 50), Beta: rocchioBeta(c), BM25: p}})
+		return suggest.New(tbl, suggest.Options{Model: "rocchio", AutoModel: "rocchio", AutoTerms: c.Terms, BM25: p,
+			Rocchio: prf.RocchioOptions{FeedbackDocs: c.Docs, FeedbackTerms: max(c.Terms, 50), Beta: rocchioBeta(c)}})
 	}
 	if c.Model == "blend" {
-		return suggest.New(tbl, suggest.Options{AutoModel: "blend", AutoTerms: c.Terms,
-			Blend: prf.BlendOptions{FeedbackDocs: c.Docs, FeedbackTerms: max(c.Terms, 50), OrigWeight: c.Orig, Background: c.Alt, Mu: blendMu, BM25: p}})
+		return suggest.New(tbl, suggest.Options{AutoModel: "blend", AutoTerms: c.Terms, BM25: p,
+			Blend: prf.BlendOptions{FeedbackDocs: c.Docs, FeedbackTerms: max(c.Terms, 50), OrigWeight: c.Orig, Background: c.Alt, Mu: blendMu}})
 	}
 	return suggest.New(tbl, suggest.Options{Model: "rm3", AutoModel: "rm3", AutoTerms: c.Terms,
 		RM3: prf.RM3Options{FeedbackDocs: c.Docs, FeedbackTerms: max(c.Terms, 50), OrigWeight: c.Orig, Mu: c.Alt}})
@@ -102,10 +102,7 @@ const blendMu = suggest.DefaultBlendMu
 // 0.2457 but lowered Cranfield's from 0.3610 to 0.3532: the larger grid
 // overfits one fold.)
 func (s *evalSet) crossValidateKinword(ctx context.Context, tbl *assoc.Table, seed uint64) (cvOutcome, error) {
-	grid := feedbackGrid("blend")
-	for i := range grid {
-		grid[i].Model = "blend"
-	}
+	grid := feedbackGrid("blend") // each configuration's Model is "blend"
 	return s.crossValidateWith(ctx, grid, "blend", seed, func(c feedbackConfig) (expander, error) {
 		eng, err := engineFor(tbl, c, s.bm25)
 		if err != nil {

@@ -167,8 +167,9 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 	// further, for the searcher's own department's documents among the
 	// FeedbackPool first. Ranking 50 rather than 10 costs about a tenth
 	// more per search (BenchmarkLatency on the 100,000-document corpus).
+	m := f.model.Load() // one snapshot for the whole request
 	pool := f.opts.FeedbackDocs
-	if f.model.Load() != nil {
+	if m != nil {
 		pool = f.opts.FeedbackPool
 	}
 	k := max(f.opts.Results, pool, depth)
@@ -204,7 +205,7 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 		salt = "useful:" + strings.Join(cleanAccepted(req.Useful), ",")
 	}
 	cached := req.Rules == nil // a trial's rules must not reach live lists
-	out.Suggestions = f.suggestions(s, view, req.Viewer, q, accepted, fbRes, out.Impression, salt, eff, len(marked), cached)
+	out.Suggestions = f.suggestions(s, m, view, req.Viewer, q, accepted, fbRes, out.Impression, salt, eff, len(marked), cached)
 	if depth > 0 {
 		out.Ranking = make([]string, 0, min(depth, len(res.Hits)))
 		for _, h := range res.Hits[:min(depth, len(res.Hits))] {
@@ -224,8 +225,9 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 }
 
 // suggestions offers terms from the viewer's own top results, cached per
-// viewer scope, query and accepted terms.
-func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []index.QueryTerm, accepted []string, res index.Result, impression, salt string, eff curate.Effect, marked int, cached bool) []suggest.Suggestion {
+// viewer scope, query and accepted terms; m is the learned model of the
+// request (nil: none).
+func (f *Finder) suggestions(s *state, m *prefs.Model, view *index.View, v access.Viewer, q []index.QueryTerm, accepted []string, res index.Result, impression, salt string, eff curate.Effect, marked int, cached bool) []suggest.Suggestion {
 	cached = cached && !f.noCache
 	key := strconv.FormatUint(s.seq, 10) + "\x00" + v.Key() + "\x00" + canonical(q) + "\x00" + strings.Join(accepted, "|") + "\x00" + salt
 	if c, ok := f.cache.Get(key); ok && cached {
@@ -236,7 +238,6 @@ func (f *Finder) suggestions(s *state, view *index.View, v access.Viewer, q []in
 		sq = append(sq, suggest.QueryTerm{Key: a, Weight: 0.3})
 	}
 	fb := feedback(res.Hits, f.opts.FeedbackDocs)
-	m := f.model.Load()
 	k := f.opts.Suggestions
 	if m != nil {
 		k *= 6 // a wider pool, so learning can lift a term the content score ranks lower
