@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 	"sort"
+	"sync/atomic"
 
 	"kinword/internal/text"
 )
@@ -24,6 +25,10 @@ type fwdDoc struct {
 	Breaks                       []int32  // token offsets where paragraphs start
 	Gaps                         []int32  // token offsets preceded by removed stopwords
 	Surf                         []uint32 // surface-form IDs, parallel to Tokens
+	// order caches Tokens' positions in term order (see termOrder); the
+	// record's tokens never change once built, so it is kept across
+	// snapshots.
+	order atomic.Pointer[[]uint16]
 }
 
 // forward is the mutable per-document store. Terms are append-only so IDs

@@ -1,8 +1,6 @@
 package index
 
 import (
-	"sort"
-
 	"kinword/internal/access"
 	"kinword/internal/text"
 )
@@ -108,23 +106,6 @@ func (w *View) Tokens(d uint32) ([]uint32, []int32) {
 type TermFreq struct {
 	Term uint32
 	TF   int
-}
-
-// TermVector returns document d's distinct terms with frequencies, sorted by
-// term ID.
-func (w *View) TermVector(d uint32) []TermFreq {
-	toks := append([]uint32(nil), w.s.docs[d].Tokens...)
-	sort.Slice(toks, func(i, j int) bool { return toks[i] < toks[j] })
-	var out []TermFreq
-	for i := 0; i < len(toks); {
-		j := i
-		for j < len(toks) && toks[j] == toks[i] {
-			j++
-		}
-		out = append(out, TermFreq{toks[i], j - i})
-		i = j
-	}
-	return out
 }
 
 // Display returns the most common surface form of a stem or phrase key

@@ -20,8 +20,9 @@ const (
 // cand is one candidate term or phrase.
 type cand struct {
 	key   string
-	words []string // the key's stems; one for a single word
-	id    uint32   // corpus ID of a single word
+	words []string  // the key's stems; one for a single word
+	one   [1]string // words' backing array for a single word
+	id    uint32    // corpus ID of a single word
 	hasID bool
 
 	src        uint8
@@ -64,8 +65,14 @@ type run struct {
 	docs    []fbDoc
 	fbByKey map[string]float64 // feedback-model weight of each stem
 	cands   map[string]*cand
+	slab    []cand  // where get allocates candidates, a chunk at a time
 	list    []*cand // candidates passing the filters, sorted by key
 }
+
+// candChunk is how many candidates get allocates at once, and the size
+// hint of a run's maps: a request sees some tens to a hundred and more
+// (the feedback model's terms, the association neighbours, phrases).
+const candChunk = 32
 
 // prepare merges the query and selects the readable feedback documents:
 // the suggestion model's FeedbackDocs best by score (ties: earlier first),
@@ -74,7 +81,7 @@ func (e *Engine) prepare(c Corpus, req Request) *run { return e.prepareFor(c, re
 
 // prepareFor is prepare keeping the fbDocs best feedback documents.
 func (e *Engine) prepareFor(c Corpus, req Request, fbDocs int) *run {
-	r := &run{e: e, c: c, req: req, qstems: map[string]bool{}, cands: map[string]*cand{}, fbByKey: map[string]float64{}}
+	r := &run{e: e, c: c, req: req, qstems: map[string]bool{}, cands: make(map[string]*cand, 2*candChunk), fbByKey: make(map[string]float64, candChunk)}
 	r.query = mergeQuery(req.Query)
 	for _, q := range r.query {
 		r.qsum += q.Weight
@@ -96,7 +103,11 @@ func (e *Engine) prepareFor(c Corpus, req Request, fbDocs int) *run {
 	}
 	for _, h := range hits {
 		toks, _ := c.Tokens(h.Doc)
-		r.docs = append(r.docs, fbDoc{d: h.Doc, score: h.Score, terms: termVector(toks), toks: toks})
+		var order []uint16
+		if o, ok := c.(termOrderer); ok {
+			order = o.TermOrder(h.Doc)
+		}
+		r.docs = append(r.docs, fbDoc{d: h.Doc, score: h.Score, terms: termVector(toks, order), toks: toks})
 	}
 	return r
 }
@@ -121,23 +132,42 @@ func mergeQuery(q []QueryTerm) []QueryTerm {
 	return out
 }
 
-// termVector returns the distinct terms of toks with their frequencies.
-func termVector(toks []uint32) []prf.TermFreq {
-	s := slices.Clone(toks)
-	slices.Sort(s)
+// termOrderer is a Corpus that keeps each document's token positions in
+// term order (Tokens[order[0]], Tokens[order[1]], ... ascending), so that a
+// feedback document's term vector needs no sort; the index keeps it. nil
+// means "sort the tokens".
+type termOrderer interface {
+	TermOrder(d uint32) []uint16
+}
+
+// termVector returns the distinct terms of toks with their frequencies,
+// ascending by term: read in order when order (toks' positions in term
+// order) is given, else from a sorted copy.
+func termVector(toks []uint32, order []uint16) []prf.TermFreq {
+	if len(order) != len(toks) {
+		s := slices.Clone(toks)
+		slices.Sort(s)
+		return countRuns(len(s), func(i int) uint32 { return s[i] })
+	}
+	return countRuns(len(order), func(i int) uint32 { return toks[order[i]] })
+}
+
+// countRuns turns n ascending term IDs, read through at, into (term,
+// frequency) runs, allocating once.
+func countRuns(n int, at func(int) uint32) []prf.TermFreq {
 	distinct := 0
-	for i, t := range s {
-		if i == 0 || t != s[i-1] {
+	for i := range n {
+		if i == 0 || at(i) != at(i-1) {
 			distinct++
 		}
 	}
 	out := make([]prf.TermFreq, 0, distinct)
-	for i := 0; i < len(s); {
-		j := i
-		for j < len(s) && s[j] == s[i] {
+	for i := 0; i < n; {
+		t, j := at(i), i+1
+		for j < n && at(j) == t {
 			j++
 		}
-		out = append(out, prf.TermFreq{Term: s[i], TF: j - i})
+		out = append(out, prf.TermFreq{Term: t, TF: j - i})
 		i = j
 	}
 	return out
@@ -174,7 +204,17 @@ func (r *run) get(key string) *cand {
 	if cd, ok := r.cands[key]; ok {
 		return cd
 	}
-	cd := &cand{key: key, words: strings.Fields(key)}
+	if len(r.slab) == cap(r.slab) {
+		r.slab = make([]cand, 0, candChunk) // earlier chunks stay where they are
+	}
+	r.slab = append(r.slab, cand{key: key})
+	cd := &r.slab[len(r.slab)-1]
+	if strings.IndexByte(key, ' ') < 0 {
+		cd.one[0] = key
+		cd.words = cd.one[:]
+	} else {
+		cd.words = strings.Fields(key)
+	}
 	r.cands[key] = cd
 	return cd
 }
