@@ -36,7 +36,8 @@ type cand struct {
 	dispSafe   bool   // tblDisplay comes from open text
 	inTable    bool   // the viewer's scopes of the table have it
 
-	docSet  []uint64 // feedback documents containing it (bit i: r.docs[i])
+	docSet  []uint64  // feedback documents containing it (bit i: r.docs[i])
+	set     [1]uint64 // docSet's backing array for up to 64 feedback documents
 	ndocs   int
 	haveSet bool
 

@@ -28,14 +28,23 @@ func (r *run) docSet(cd *cand) int {
 		return cd.ndocs
 	}
 	cd.haveSet = true
-	cd.docSet = make([]uint64, (len(r.docs)+63)/64)
-	ids := make([]uint32, 0, len(cd.words))
-	for _, w := range cd.words {
-		id, ok := r.c.TermID(w)
-		if !ok {
-			return 0
+	if n := (len(r.docs) + 63) / 64; n <= len(cd.set) {
+		cd.docSet = cd.set[:n]
+	} else {
+		cd.docSet = make([]uint64, n)
+	}
+	var buf [4]uint32
+	ids := buf[:0]
+	if cd.hasID {
+		ids = append(ids, cd.id)
+	} else {
+		for _, w := range cd.words {
+			id, ok := r.c.TermID(w)
+			if !ok {
+				return 0
+			}
+			ids = append(ids, id)
 		}
-		ids = append(ids, id)
 	}
 	for i, d := range r.docs {
 		in := true
