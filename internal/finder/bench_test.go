@@ -32,7 +32,9 @@ import (
 // computed beforehand; search-with-suggestions and expanded-5 are whole
 // page requests (results with snippets and suggestions); paired times
 // search and suggestions alternately on each query and reports their
-// ratios, the figure to quote on a noisy machine.
+// ratios, the figure to quote on a noisy machine. Repeat by running the
+// command again rather than with -count: later runs in one process, which
+// open the finder again after the first closed it, come out slower.
 //
 //	KINWORD_BENCH_DATA=/tmp/k100k go test ./internal/finder -run XXX -bench Latency -benchtime 2000x
 func BenchmarkLatency(b *testing.B) {
