@@ -13,11 +13,7 @@ import (
 // a term order the corpus keeps and by sorting, against a count by map
 // (the reference), including an order of the wrong length (ignored).
 func TestTermVector(t *testing.T) {
-	rng := rand.New(rand.NewPCG(3, 4))
-	random := make([]uint32, 2000)
-	for i := range random {
-		random[i] = uint32(rng.IntN(150))
-	}
+	random := randomTokens(2000, 150)
 	cases := []struct {
 		name  string
 		toks  []uint32
@@ -89,4 +85,14 @@ func orderOf(toks []uint32) []uint16 {
 	}
 	slices.SortStableFunc(o, func(a, b uint16) int { return int(int64(toks[a]) - int64(toks[b])) })
 	return o
+}
+
+// randomTokens draws n term IDs below vocab with a fixed seed.
+func randomTokens(n, vocab int) []uint32 {
+	rng := rand.New(rand.NewPCG(3, 4))
+	out := make([]uint32, n)
+	for i := range out {
+		out[i] = uint32(rng.IntN(vocab))
+	}
+	return out
 }
