@@ -80,6 +80,7 @@ func runEval(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
+	set.accept = e.cfg.Search.AcceptedWeight // suggestions are scored as the server expands
 	per, runs, err := set.run(ctx, nil)
 	if err != nil {
 		return err
@@ -191,8 +192,8 @@ func runEval(ctx context.Context, e *env, args []string) error {
 			}
 		}
 		if quality != nil {
-			fmt.Fprintf(w, "suggestions (top 5, %d offered over %d topics): good %.2f, neutral %.2f, bad %.2f (AP change of +/-%.3f on adding one)\n",
-				quality.Suggestions, quality.Topics, quality.Good, quality.Neutral, quality.Bad, qualityDelta)
+			fmt.Fprintf(w, "suggestions (top 5, %d offered over %d topics): good %.2f, neutral %.2f, bad %.2f (AP change of +/-%.3f on adding one at weight %.2f)\n",
+				quality.Suggestions, quality.Topics, quality.Good, quality.Neutral, quality.Bad, qualityDelta, quality.AcceptedWeight)
 			fmt.Fprintf(w, "simulated searcher MAP: best of 5 %.4f, best pair %.4f, first %.4f, random one %.4f (BM25 %.4f)\n",
 				simulated.BestOf5, simulated.BestPairOf5, simulated.FirstOf5, simulated.RandomOf5, rep.Runs[0].MAP)
 		}

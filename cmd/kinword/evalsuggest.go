@@ -25,6 +25,9 @@ type suggestionQuality struct {
 	Bad         float64 `json:"bad"`
 	Suggestions int     `json:"suggestions"`
 	Topics      int     `json:"topics"`
+	// AcceptedWeight is the weight each suggestion was added at
+	// (search.accepted_weight).
+	AcceptedWeight float64 `json:"accepted_weight"`
 }
 
 // simulatedSearcher is MAP for a searcher shown the top five who accepts
@@ -138,7 +141,10 @@ func (s *evalSet) pick(all []map[string]eval.Measures, grid []feedbackConfig, me
 // evalSuggestions offers the top five suggestions per topic and measures
 // each by adding it to the query at the accepted-term weight.
 func (s *evalSet) evalSuggestions(ctx context.Context, eng *suggest.Engine, base map[string]eval.Measures) (suggestionQuality, simulatedSearcher, error) {
-	var q suggestionQuality
+	q := suggestionQuality{AcceptedWeight: s.accept}
+	if !(q.AcceptedWeight > 0) {
+		q.AcceptedWeight = suggest.DefaultExpandWeight
+	}
 	var sim simulatedSearcher
 	good, bad, n := 0, 0, 0
 	for _, qid := range judgedTopics(s) {

@@ -75,7 +75,7 @@ func (e *env) serveWith(ctx context.Context, addr string, demo bool, shared stri
 	f, err := finder.Open(ctx, dir, p, finder.Options{
 		BM25: e.bm25(), Results: e.cfg.Search.Results, SnippetTokens: e.cfg.Search.SnippetTokens,
 		Limits: e.queryLimits(), CacheTTL: time.Duration(e.cfg.Server.RefreshSeconds) * time.Second, Version: version,
-		AutoExpand: e.cfg.Search.AutoExpand, Concurrent: e.cfg.Search.Concurrent, CacheEntries: e.cfg.Search.CacheEntries,
+		AcceptWeight: e.cfg.Search.AcceptedWeight, AutoExpand: e.cfg.Search.AutoExpand, Concurrent: e.cfg.Search.Concurrent, CacheEntries: e.cfg.Search.CacheEntries,
 	})
 	if err != nil {
 		return err

@@ -59,7 +59,7 @@ func runSimulate(ctx context.Context, e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	f, err := finder.Open(ctx, e.dataDir, p, finder.Options{BM25: e.bm25(), Limits: e.queryLimits()})
+	f, err := finder.Open(ctx, e.dataDir, p, finder.Options{BM25: e.bm25(), Limits: e.queryLimits(), AcceptWeight: e.cfg.Search.AcceptedWeight})
 	if err != nil {
 		return fmt.Errorf("simulate: %w (run kinword demo first)", err)
 	}

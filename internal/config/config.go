@@ -198,6 +198,10 @@ type Search struct {
 	MaxQueryBytes int `toml:"max_query_bytes"`
 	// MaxQueryTerms is the most distinct terms; default 32.
 	MaxQueryTerms int `toml:"max_query_terms"`
+	// AcceptedWeight is the weight a term the searcher accepts gets in
+	// the expanded query, relative to the query's strongest term, in
+	// (0, 1]; default 0.3. Evaluation scores suggestions at it too.
+	AcceptedWeight float64 `toml:"accepted_weight"`
 	// AutoExpand expands every search without clicks (the automatic
 	// mode, from the searcher's own top results); default false.
 	AutoExpand bool `toml:"auto_expand"`
@@ -292,6 +296,9 @@ func (c Config) Validate() error {
 	}
 	if c.Search.CacheEntries < -1 || c.Search.CacheEntries > 10_000_000 {
 		bad("search.cache_entries", "%d is outside -1..10000000 (0: 10,000, -1: no bound)", c.Search.CacheEntries)
+	}
+	if !(c.Search.AcceptedWeight > 0 && c.Search.AcceptedWeight <= 1) {
+		bad("search.accepted_weight", "%g is outside (0, 1]", c.Search.AcceptedWeight)
 	}
 	if c.Search.Results < 1 || c.Search.Results > 1000 {
 		bad("search.results", "%d is outside 1..1000", c.Search.Results)

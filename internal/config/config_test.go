@@ -16,7 +16,9 @@ func TestDefaultsValidate(t *testing.T) {
 	// The documented defaults (config/kinword.toml) must match the values
 	// the issue fixes: BM25 k1 1.2 and b 0.75 (Robertson & Zaragoza 2009,
 	// the conventional values).
-	if c.Index.BM25K1 != 1.2 || c.Index.BM25B != 0.75 || c.Search.MaxQueryBytes != 512 || c.Search.MaxQueryTerms != 32 {
+	// The accepted-term weight 0.3 is Kinword's own default (suggest's
+	// DefaultExpandWeight), not a published value.
+	if c.Index.BM25K1 != 1.2 || c.Index.BM25B != 0.75 || c.Search.MaxQueryBytes != 512 || c.Search.MaxQueryTerms != 32 || c.Search.AcceptedWeight != 0.3 {
 		t.Errorf("defaults drifted: %+v", c)
 	}
 }
@@ -31,6 +33,10 @@ func TestLoadReportsAllProblems(t *testing.T) {
 		{"several bad values", "language = \"klingon\"\n[index]\nbm25_b = 2\nbm25_k1 = 0\n", []string{"language", "index.bm25_b", "index.bm25_k1"}},
 		{"bad toml", "[index\n", []string{"parse"}},
 		{"search bounds out of range", "[search]\nconcurrent = -2\ncache_entries = -5\n", []string{"search.concurrent", "search.cache_entries"}},
+		{"accepted weight zero", "[search]\naccepted_weight = 0\n", []string{"search.accepted_weight", "outside (0, 1]"}},
+		{"accepted weight above the query's own", "[search]\naccepted_weight = 1.5\n", []string{"search.accepted_weight"}},
+		{"accepted weight negative", "[search]\naccepted_weight = -0.3\n", []string{"search.accepted_weight"}},
+		{"accepted weight not a number", "[search]\naccepted_weight = nan\n", []string{"search.accepted_weight"}},
 		{"override ok", "[search]\nresults = 20\n", nil},
 	}
 	for _, c := range cases {

@@ -139,6 +139,7 @@ func checkDocumentedRanges(t *testing.T, c Config) {
 		{"index.batch_size 1 .. 100000", inside(float64(c.Index.BatchSize), 1, 100000, false)},
 		{"ingest.max_file_bytes positive", c.Ingest.MaxFileBytes > 0},
 		{"ingest.batch_size positive", c.Ingest.BatchSize > 0},
+		{"search.accepted_weight in (0, 1]", inside(c.Search.AcceptedWeight, 0, 1, true)},
 		{"search.results 1 .. 1000", inside(float64(c.Search.Results), 1, 1000, false)},
 		{"search.snippet_tokens 5 .. 200", inside(float64(c.Search.SnippetTokens), 5, 200, false)},
 		{"search.max_query_bytes positive", c.Search.MaxQueryBytes > 0},
