@@ -28,6 +28,7 @@
     var rm = el("t-remove").value.split(",").map(function (s) { return s.trim(); }).filter(Boolean);
     if (rm.length) { p.remove = rm; }
     if (el("t-auto").value) { p.auto_expand = el("t-auto").value === "true"; }
+    if (el("t-weight").value) { p.accepted_weight = Number(el("t-weight").value); }
     return p;
   }
 

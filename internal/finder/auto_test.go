@@ -86,3 +86,35 @@ func TestAutoExpand(t *testing.T) {
 		})
 	}
 }
+
+// TestRequestAcceptWeight: a request's AcceptWeight overrides the
+// configured weight of its accepted terms. "w4" holds the accepted phrase
+// and none of the typed words, so its BM25 score is the phrase's alone and
+// scales with the weight: 1.0 against the default 0.3 multiplies it by 1/0.3.
+func TestRequestAcceptWeight(t *testing.T) {
+	p, _ := text.NewPipeline("")
+	ctx := context.Background()
+	f, err := Open(ctx, writeDataDir(t, autoDocs), p, Options{CacheTTL: -1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { f.Close() })
+	score := func(w float64) float64 {
+		t.Helper()
+		r, err := f.Search(ctx, Request{Query: "burst", Accepted: []string{"main break"}, Viewer: access.Anonymous, WithResults: true, AcceptWeight: w})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, x := range r.Results {
+			if x.ID == "w4" {
+				return x.Score
+			}
+		}
+		t.Fatalf("weight %g: w4 not found in %v", w, r.Results)
+		return 0
+	}
+	def, full := score(0), score(1)
+	if ratio := full / def; ratio < 3.333 || ratio > 3.334 {
+		t.Errorf("w4 scores %.4f at the configured weight and %.4f at 1: ratio %.4f, want 1/0.3", def, full, ratio)
+	}
+}

@@ -105,6 +105,10 @@ type Request struct {
 	// AutoExpand, when non-nil, overrides Options.AutoExpand for this
 	// request (offline trials of the setting).
 	AutoExpand *bool
+	// AcceptWeight, when positive, overrides Options.AcceptWeight for this
+	// request's accepted terms (offline trials of the setting); its
+	// suggestion lists are neither read from nor left in the cache.
+	AcceptWeight float64
 }
 
 // MaxRanking is the deepest Request.Ranking served.
@@ -141,7 +145,11 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 	accepted := cleanAccepted(req.Accepted)
 	full := withEquivalents(q, eff)
 	if len(accepted) > 0 {
-		x := suggest.Expand(toSuggest(full), accepted, f.opts.AcceptWeight)
+		w := f.opts.AcceptWeight
+		if req.AcceptWeight > 0 {
+			w = req.AcceptWeight
+		}
+		x := suggest.Expand(toSuggest(full), accepted, w)
 		full = make([]index.QueryTerm, len(x))
 		for i, t := range x {
 			full[i] = index.QueryTerm{Key: t.Key, Weight: t.Weight}
@@ -204,7 +212,7 @@ func (f *Finder) Search(ctx context.Context, req Request) (Response, error) {
 	if len(marked) > 0 {
 		salt = "useful:" + strings.Join(cleanAccepted(req.Useful), ",")
 	}
-	cached := req.Rules == nil // a trial's rules must not reach live lists
+	cached := req.Rules == nil && req.AcceptWeight == 0 // a trial's settings must not reach live lists
 	out.Suggestions = f.suggestions(s, m, view, req.Viewer, q, accepted, fbRes, out.Impression, salt, eff, len(marked), cached)
 	if depth > 0 {
 		out.Ranking = make([]string, 0, min(depth, len(res.Hits)))

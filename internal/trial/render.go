@@ -34,6 +34,9 @@ func (r *Report) WriteMarkdown(w io.Writer) error {
 	if a := r.Proposal.AutoExpand; a != nil {
 		fmt.Fprintf(&b, " Automatic mode on the proposed side: %v.", *a)
 	}
+	if w := r.Proposal.AcceptedWeight; w != nil {
+		fmt.Fprintf(&b, " Accepted-term weight on the proposed side: %.2f.", *w)
+	}
 	b.WriteString("\n")
 	for _, v := range r.Views {
 		fmt.Fprintf(&b, "\n## %s\n\n", viewTitles[v.Name])

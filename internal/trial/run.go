@@ -25,6 +25,9 @@ func Sets(inForce []curate.Rule, p Proposal, pl *text.Pipeline) (current, propos
 	if n := len(p.Title); n > MaxTitleBytes || !utf8.ValidString(p.Title) {
 		return nil, nil, fmt.Errorf("%w: title must be valid UTF-8 of at most %d bytes", ErrInvalid, MaxTitleBytes)
 	}
+	if w := p.AcceptedWeight; w != nil && !(*w > 0 && *w <= 1) {
+		return nil, nil, fmt.Errorf("%w: accepted_weight %g is outside (0, 1]", ErrInvalid, *w)
+	}
 	if len(p.Add)+len(p.Remove) > MaxRules {
 		return nil, nil, fmt.Errorf("%w: at most %d rules may be added or removed", ErrInvalid, MaxRules)
 	}
@@ -62,16 +65,18 @@ func Sets(inForce []curate.Rule, p Proposal, pl *text.Pipeline) (current, propos
 
 // side is one arm of the trial.
 type side struct {
-	name  string
-	rules *curate.Set
-	auto  *bool
+	name   string
+	rules  *curate.Set
+	auto   *bool
+	accept float64 // accepted-term weight; 0 = as configured
 }
 
 // outcome is one topic on one side.
 type outcome struct {
 	search, first, best eval.Measures
-	ranking             []string // the plain search's ranking
-	terms, shown        []string // suggestion keys and displays
+	ranking             []string   // the plain search's ranking
+	terms, shown        []string   // suggestion keys and displays
+	accepted            [][]string // the ranking after each suggestion tried
 }
 
 // Run runs every judged topic of col on both sides and compares them. The
@@ -93,7 +98,11 @@ func Run(ctx context.Context, s Searcher, col *eval.Collection, current, propose
 	if len(topics) > MaxTopics {
 		return nil, fmt.Errorf("%w: the judged set %s has %d judged topics; at most %d are run", ErrInvalid, col.Name, len(topics), MaxTopics)
 	}
-	sides := []side{{Current, current, nil}, {Proposed, proposed, p.AutoExpand}}
+	proposedWeight := 0.0
+	if p.AcceptedWeight != nil {
+		proposedWeight = *p.AcceptedWeight
+	}
+	sides := []side{{Current, current, nil, 0}, {Proposed, proposed, p.AutoExpand, proposedWeight}}
 	per := map[string]map[string]map[string]eval.Measures{} // view -> side -> qid
 	for _, v := range []string{ViewSearch, ViewFirst, ViewBest} {
 		per[v] = map[string]map[string]eval.Measures{Current: {}, Proposed: {}}
@@ -113,7 +122,8 @@ func Run(ctx context.Context, s Searcher, col *eval.Collection, current, propose
 			per[ViewBest][sd.name][t.ID] = o.best
 		}
 		a, b := outs[0], outs[1]
-		if !slices.Equal(a.ranking, b.ranking) || !slices.Equal(a.terms, b.terms) {
+		if !slices.Equal(a.ranking, b.ranking) || !slices.Equal(a.terms, b.terms) ||
+			!slices.EqualFunc(a.accepted, b.accepted, slices.Equal) {
 			rep.Changed++
 			if !slices.Equal(a.terms, b.terms) && len(rep.Samples) < maxSamples {
 				rep.Samples = append(rep.Samples, Sample{QID: t.ID, Query: t.Text, Before: a.shown, After: b.shown})
@@ -139,12 +149,13 @@ func Run(ctx context.Context, s Searcher, col *eval.Collection, current, propose
 // the first Tries suggestions accepted in turn.
 func runTopic(ctx context.Context, s Searcher, t eval.Topic, judged map[string]int, sd side, opts Options) (outcome, error) {
 	req := finder.Request{
-		Query:      t.Text,
-		Viewer:     access.Viewer{Department: t.Department, Groups: opts.Groups}.Normalize(),
-		Impression: "trial-" + t.ID, // the same exploration on both sides
-		Rules:      sd.rules,
-		Ranking:    opts.Depth,
-		AutoExpand: sd.auto,
+		Query:        t.Text,
+		Viewer:       access.Viewer{Department: t.Department, Groups: opts.Groups}.Normalize(),
+		Impression:   "trial-" + t.ID, // the same exploration on both sides
+		Rules:        sd.rules,
+		Ranking:      opts.Depth,
+		AutoExpand:   sd.auto,
+		AcceptWeight: sd.accept,
 	}
 	resp, err := s.Search(ctx, req)
 	if errors.Is(err, index.ErrBadQuery) {
@@ -169,6 +180,7 @@ func runTopic(ctx context.Context, s Searcher, t eval.Topic, judged map[string]i
 		if err != nil {
 			return outcome{}, err
 		}
+		o.accepted = append(o.accepted, r.Ranking)
 		m := eval.Evaluate(r.Ranking, judged)
 		if i == 0 {
 			o.first, o.best = m, m

@@ -46,11 +46,16 @@ type Proposal struct {
 	// AutoExpand, when set, switches the automatic mode (search.auto_expand)
 	// for the proposed side; nil keeps the configured setting on both sides.
 	AutoExpand *bool `json:"auto_expand,omitempty"`
+	// AcceptedWeight, when set, is the weight of an accepted term
+	// (search.accepted_weight, in (0, 1]) on the proposed side; nil keeps
+	// the configured weight on both sides. It acts on the two views with
+	// an accepted suggestion.
+	AcceptedWeight *float64 `json:"accepted_weight,omitempty"`
 }
 
 // Empty reports whether p changes nothing.
 func (p Proposal) Empty() bool {
-	return len(p.Add) == 0 && len(p.Remove) == 0 && p.AutoExpand == nil
+	return len(p.Add) == 0 && len(p.Remove) == 0 && p.AutoExpand == nil && p.AcceptedWeight == nil
 }
 
 // Limits on a proposal.

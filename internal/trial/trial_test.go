@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/csv"
 	"errors"
+	"math"
 	"strings"
 	"testing"
 
@@ -158,6 +159,11 @@ func TestSetsBadProposals(t *testing.T) {
 		{"long title", Proposal{Title: strings.Repeat("x", MaxTitleBytes+1)}, "title"},
 		{"bad utf-8 title", Proposal{Title: "\xff"}, "title"},
 		{"too many", Proposal{Remove: make([]string, MaxRules+1)}, "at most"},
+		{"accepted weight", Proposal{AcceptedWeight: ptr(0.5)}, ""},
+		{"accepted weight 1", Proposal{AcceptedWeight: ptr(1.0)}, ""},
+		{"accepted weight 0", Proposal{AcceptedWeight: ptr(0.0)}, "accepted_weight"},
+		{"accepted weight above 1", Proposal{AcceptedWeight: ptr(1.5)}, "accepted_weight"},
+		{"accepted weight NaN", Proposal{AcceptedWeight: ptr(math.NaN())}, "accepted_weight"},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -180,5 +186,61 @@ func TestRunNoJudgedTopics(t *testing.T) {
 	cur, prop, _ := Sets(nil, Proposal{}, nil)
 	if _, err := Run(context.Background(), &fake{}, col, cur, prop, Proposal{}, Options{}); !errors.Is(err, ErrInvalid) {
 		t.Fatalf("err %v, want ErrInvalid", err)
+	}
+}
+
+func ptr[T any](v T) *T { return &v }
+
+// weighted answers an accepted search by the request's accepted-term
+// weight: with the proposed side's override the relevant d1 ranks first,
+// with the configured weight (0 in the request) second.
+type weighted struct{ calls, overridden int }
+
+func (w *weighted) Search(_ context.Context, req finder.Request) (finder.Response, error) {
+	w.calls++
+	out := finder.Response{Ranking: []string{"d2", "d1"},
+		Suggestions: []suggest.Suggestion{{Term: "a", Display: "a"}}}
+	if len(req.Accepted) == 1 && req.AcceptWeight > 0 {
+		w.overridden++
+		if req.AcceptWeight != 0.6 {
+			return out, errors.New("weighted: the proposal's weight did not reach the search")
+		}
+		out.Ranking = []string{"d1", "d2"}
+	}
+	return out, nil
+}
+
+// TestRunAcceptedWeight: a proposal of another accepted-term weight leaves
+// the plain search alone and acts on the views with an accepted
+// suggestion. By hand (one topic, relevant d1): after accepting "a" AP is
+// 1/2 on the current side (d1 second) and 1 on the proposed side (first).
+func TestRunAcceptedWeight(t *testing.T) {
+	col := &eval.Collection{Name: "tiny", Topics: []eval.Topic{{ID: "q1", Text: "pipe"}}, Qrels: eval.Qrels{"q1": {"d1": 1}}}
+	p := Proposal{Title: "heavier accepted terms", AcceptedWeight: ptr(0.6)}
+	cur, prop, err := Sets(nil, p, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w := &weighted{}
+	rep, err := Run(context.Background(), w, col, cur, prop, p, Options{Trials: 1000})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rep.Changed != 1 || w.calls != 4 || w.overridden != 1 {
+		t.Fatalf("changed %d, %d searches (%d with the override), want 1, 4 (1)", rep.Changed, w.calls, w.overridden)
+	}
+	want := map[string][2]float64{ViewSearch: {0.5, 0.5}, ViewFirst: {0.5, 1}, ViewBest: {0.5, 1}}
+	for name, m := range want {
+		r := rep.Find(name).Report
+		if c, pr := r.Find(Current).MAP, r.Find(Proposed).MAP; !near(c, m[0]) || !near(pr, m[1]) {
+			t.Errorf("%s: MAP %.4f / %.4f, want %.4f / %.4f", name, c, pr, m[0], m[1])
+		}
+	}
+	var b strings.Builder
+	if err := rep.WriteMarkdown(&b); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(b.String(), "Accepted-term weight on the proposed side: 0.60.") {
+		t.Errorf("markdown does not name the proposed weight:\n%s", b.String())
 	}
 }

@@ -69,7 +69,7 @@ func (s *Server) runTrial(c *gin.Context) {
 		return
 	}
 	if p.Empty() {
-		apiError(c, http.StatusBadRequest, "invalid_trial", "the proposal changes nothing: add or remove rules, or set auto_expand")
+		apiError(c, http.StatusBadRequest, "invalid_trial", "the proposal changes nothing: add or remove rules, or set auto_expand or accepted_weight")
 		return
 	}
 	ctx, cancel := context.WithTimeout(c.Request.Context(), maxTrialTime)
