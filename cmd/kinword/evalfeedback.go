@@ -23,8 +23,8 @@ type evalSet struct {
 	queries map[string][]index.QueryTerm
 	first   map[string]index.Result
 	qrels   eval.Qrels
-	// accept is the accepted-term weight used when scoring suggestions
-	// (0: suggest's default).
+	// accept is the accepted-term weight suggestions are scored at: the
+	// configured search.accepted_weight, set by runEval.
 	accept float64
 }
 

@@ -142,9 +142,6 @@ func (s *evalSet) pick(all []map[string]eval.Measures, grid []feedbackConfig, me
 // each by adding it to the query at the accepted-term weight.
 func (s *evalSet) evalSuggestions(ctx context.Context, eng *suggest.Engine, base map[string]eval.Measures) (suggestionQuality, simulatedSearcher, error) {
 	q := suggestionQuality{AcceptedWeight: s.accept}
-	if !(q.AcceptedWeight > 0) {
-		q.AcceptedWeight = suggest.DefaultExpandWeight
-	}
 	var sim simulatedSearcher
 	good, bad, n := 0, 0, 0
 	for _, qid := range judgedTopics(s) {

@@ -10,7 +10,7 @@ import (
 // TestEvalAcceptedWeightFromConfig: eval scores suggestions at the
 // configured search.accepted_weight, the weight the server gives an
 // accepted term, and says so in its report; a heavier weight moves the
-// simulated searcher.
+// simulated searcher. A wiring check: no published value applies.
 func TestEvalAcceptedWeightFromConfig(t *testing.T) {
 	heavy := filepath.Join(t.TempDir(), "k.toml")
 	if err := os.WriteFile(heavy, []byte("[search]\naccepted_weight = 0.9\n"), 0o644); err != nil {

@@ -90,7 +90,9 @@ func TestAutoExpand(t *testing.T) {
 // TestRequestAcceptWeight: a request's AcceptWeight overrides the
 // configured weight of its accepted terms. "w4" holds the accepted phrase
 // and none of the typed words, so its BM25 score is the phrase's alone and
-// scales with the weight: 1.0 against the default 0.3 multiplies it by 1/0.3.
+// scales with the weight: 1.0 against the default 0.3 multiplies it by
+// 1/0.3. (A weighted query's BM25 score is the weighted sum of its terms'
+// scores: Robertson & Zaragoza 2009, section 3, from memory.)
 func TestRequestAcceptWeight(t *testing.T) {
 	p, _ := text.NewPipeline("")
 	ctx := context.Background()

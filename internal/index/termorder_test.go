@@ -10,7 +10,8 @@ import (
 // TestTermOrder checks that a record's term order lists its token
 // positions by ascending term ID, ties by position, and that TermVector
 // read through it counts as a plain sort and count does (the reference:
-// countReference below).
+// countReference below, a count by map; common practice, no published
+// value applies).
 func TestTermOrder(t *testing.T) {
 	rng := rand.New(rand.NewPCG(1, 2))
 	random := make([]uint32, 5000)

@@ -102,11 +102,12 @@ func (e *Engine) prepareFor(c Corpus, req Request, fbDocs int) *run {
 	if len(hits) > fbDocs {
 		hits = hits[:fbDocs]
 	}
+	orderer, _ := c.(termOrderer)
 	for _, h := range hits {
 		toks, _ := c.Tokens(h.Doc)
 		var order []uint16
-		if o, ok := c.(termOrderer); ok {
-			order = o.TermOrder(h.Doc)
+		if orderer != nil {
+			order = orderer.TermOrder(h.Doc)
 		}
 		r.docs = append(r.docs, fbDoc{d: h.Doc, score: h.Score, terms: termVector(toks, order), toks: toks})
 	}

@@ -11,7 +11,8 @@ import (
 
 // TestTermVector checks both ways of reading a document's term vector, by
 // a term order the corpus keeps and by sorting, against a count by map
-// (the reference), including an order of the wrong length (ignored).
+// (the reference; common practice, no published value applies), including
+// an order of the wrong length (ignored).
 func TestTermVector(t *testing.T) {
 	random := randomTokens(2000, 150)
 	cases := []struct {

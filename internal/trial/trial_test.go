@@ -212,8 +212,9 @@ func (w *weighted) Search(_ context.Context, req finder.Request) (finder.Respons
 
 // TestRunAcceptedWeight: a proposal of another accepted-term weight leaves
 // the plain search alone and acts on the views with an accepted
-// suggestion. By hand (one topic, relevant d1): after accepting "a" AP is
-// 1/2 on the current side (d1 second) and 1 on the proposed side (first).
+// suggestion. AP by hand (trec_eval's definition; Manning, Raghavan &
+// Schütze 2008, §8.4), one topic with relevant d1: after accepting "a" AP
+// is 1/2 on the current side (d1 second) and 1 on the proposed side (first).
 func TestRunAcceptedWeight(t *testing.T) {
 	col := &eval.Collection{Name: "tiny", Topics: []eval.Topic{{ID: "q1", Text: "pipe"}}, Qrels: eval.Qrels{"q1": {"d1": 1}}}
 	p := Proposal{Title: "heavier accepted terms", AcceptedWeight: ptr(0.6)}
