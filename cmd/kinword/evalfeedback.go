@@ -88,12 +88,7 @@ func feedbackDocs(v *index.View, res index.Result, n int) []prf.Doc {
 		if i == n {
 			break
 		}
-		tv := v.TermVector(h.Doc)
-		d := prf.Doc{Len: v.DocLen(h.Doc), Score: h.Score, Terms: make([]prf.TermFreq, len(tv))}
-		for j, t := range tv {
-			d.Terms[j] = prf.TermFreq{Term: t.Term, TF: t.TF}
-		}
-		docs = append(docs, d)
+		docs = append(docs, prf.Doc{Len: v.DocLen(h.Doc), Score: h.Score, Terms: v.TermVector(h.Doc)})
 	}
 	return docs
 }

@@ -3,6 +3,8 @@ package index
 import (
 	"math"
 	"slices"
+
+	"kinword/internal/prf"
 )
 
 // maxOrdered is the longest document whose term order is kept: positions
@@ -44,29 +46,7 @@ func (x *fwdDoc) termOrder() []uint16 {
 func (w *View) TermOrder(d uint32) []uint16 { return w.s.docs[d].termOrder() }
 
 // TermVector returns document d's distinct terms with frequencies, sorted by
-// term ID.
+// term ID, read through its term order (sorted when it has none).
 func (w *View) TermVector(d uint32) []TermFreq {
-	toks := w.s.docs[d].Tokens
-	order := w.TermOrder(d)
-	if order == nil {
-		s := slices.Clone(toks)
-		slices.Sort(s)
-		return countSorted(len(s), func(i int) uint32 { return s[i] })
-	}
-	return countSorted(len(order), func(i int) uint32 { return toks[order[i]] })
-}
-
-// countSorted turns n term IDs in ascending order, read through at, into
-// runs of (term, frequency).
-func countSorted(n int, at func(int) uint32) []TermFreq {
-	var out []TermFreq
-	for i := 0; i < n; {
-		t, j := at(i), i+1
-		for j < n && at(j) == t {
-			j++
-		}
-		out = append(out, TermFreq{t, j - i})
-		i = j
-	}
-	return out
+	return prf.TermVector(w.s.docs[d].Tokens, w.TermOrder(d))
 }

@@ -92,7 +92,7 @@ func countReference(toks []uint32) []TermFreq {
 	}
 	var out []TermFreq
 	for t, c := range n {
-		out = append(out, TermFreq{t, c})
+		out = append(out, TermFreq{Term: t, TF: c})
 	}
 	slices.SortFunc(out, func(a, b TermFreq) int { return int(int64(a.Term) - int64(b.Term)) })
 	return out

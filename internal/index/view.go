@@ -2,6 +2,7 @@ package index
 
 import (
 	"kinword/internal/access"
+	"kinword/internal/prf"
 	"kinword/internal/text"
 )
 
@@ -102,11 +103,9 @@ func (w *View) Tokens(d uint32) ([]uint32, []int32) {
 	return x.Tokens, x.Breaks
 }
 
-// TermFreq is a term with its frequency in one document.
-type TermFreq struct {
-	Term uint32
-	TF   int
-}
+// TermFreq is a term with its frequency in one document: the feedback
+// models' own type, so a term vector goes to them as it is.
+type TermFreq = prf.TermFreq
 
 // Display returns the most common surface form of a stem or phrase key
 // among documents the viewer may read, or the key itself.

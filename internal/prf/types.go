@@ -17,7 +17,9 @@
 //     documents, interpolated with the query as RM3 does.
 //
 // All of them have the method Expand(q []QueryTerm, docs []Doc, st Stats)
-// Result, so a caller may declare one interface over them.
+// Result, so a caller may declare one interface over them. TermVector
+// builds a feedback document's Terms from its tokens, the one counting the
+// index and the suggestion engine share.
 //
 // The package is pure arithmetic. It must not import bleve, gin, database
 // drivers or internal/index; its only Kinword dependency is internal/rank,

@@ -109,7 +109,7 @@ func (e *Engine) prepareFor(c Corpus, req Request, fbDocs int) *run {
 		if orderer != nil {
 			order = orderer.TermOrder(h.Doc)
 		}
-		r.docs = append(r.docs, fbDoc{d: h.Doc, score: h.Score, terms: termVector(toks, order), toks: toks})
+		r.docs = append(r.docs, fbDoc{d: h.Doc, score: h.Score, terms: prf.TermVector(toks, order), toks: toks})
 	}
 	return r
 }
@@ -140,39 +140,6 @@ func mergeQuery(q []QueryTerm) []QueryTerm {
 // means "sort the tokens".
 type termOrderer interface {
 	TermOrder(d uint32) []uint16
-}
-
-// termVector returns the distinct terms of toks with their frequencies,
-// ascending by term: read in order when order (toks' positions in term
-// order) is given, else from a sorted copy.
-func termVector(toks []uint32, order []uint16) []prf.TermFreq {
-	if len(order) != len(toks) {
-		s := slices.Clone(toks)
-		slices.Sort(s)
-		return countRuns(len(s), func(i int) uint32 { return s[i] })
-	}
-	return countRuns(len(order), func(i int) uint32 { return toks[order[i]] })
-}
-
-// countRuns turns n ascending term IDs, read through at, into (term,
-// frequency) runs, allocating once.
-func countRuns(n int, at func(int) uint32) []prf.TermFreq {
-	distinct := 0
-	for i := range n {
-		if i == 0 || at(i) != at(i-1) {
-			distinct++
-		}
-	}
-	out := make([]prf.TermFreq, 0, distinct)
-	for i := 0; i < n; {
-		t, j := at(i), i+1
-		for j < n && at(j) == t {
-			j++
-		}
-		out = append(out, prf.TermFreq{Term: t, TF: j - i})
-		i = j
-	}
-	return out
 }
 
 // modelQuery is the query as the feedback model sees it: one entry per
